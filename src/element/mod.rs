@@ -1,0 +1,1 @@
+//! Element library (placeholder until the element kinds land).
