@@ -17,7 +17,18 @@ Arrays:
 
 Variants: ascii, binary (uncompressed), binary zlib; for tet10 also zlib with a UInt64 header
 and an lzma-compressed file (which the reader must refuse with a clear error).
+
+It also writes hand_bigendian_header_alone.vtu without meshio, byte by byte (struct + base64):
+BigEndian, UInt32 header words (version 0.1, no header_type), inline base64 with the length
+header encoded on its own (padding right after it), one base64 text wrapped over lines, plus
+things a reader must skip (FieldData, InformationKey, unknown attributes, a comment).
+Mesh: quad (0,1,2,3) and triangle (1,4,2) over points (0,0,0) (1,0,0) (1,1,0) (0,1,0) (2,0.5,0);
+point 'displacement' (Float64 x3) as above, point 'label' (UInt16) = 1000 + index,
+cell 'zone' (Int16) = (-5, 7), cell 'sign' (Int8, ascii) = (-1, 1).
 """
+
+import base64
+import struct
 
 import meshio
 import numpy as np
@@ -110,5 +121,56 @@ def main():
             meshio.vtu.write(f"meshio_{name}_{suffix}.vtu", mesh, **kwargs)
 
 
+def b64_header_alone(fmt, values):
+    """Big-endian values as base64, the UInt32 byte count encoded separately first."""
+    data = struct.pack(">" + fmt * len(values), *values)
+    return (base64.b64encode(struct.pack(">I", len(data))) + base64.b64encode(data)).decode()
+
+
+def hand_made_big_endian():
+    points = [(0.0, 0.0, 0.0), (1.0, 0.0, 0.0), (1.0, 1.0, 0.0), (0.0, 1.0, 0.0), (2.0, 0.5, 0.0)]
+    flat = [c for p in points for c in p]
+    disp = [v for x, y, z in points for v in (0.001 * x, -0.002 * y, 0.0005 * z)]
+    disp_b64 = b64_header_alone("d", disp)
+    wrapped = "\n          ".join(disp_b64[i:i + 40] for i in range(0, len(disp_b64), 40))
+    text = f"""<?xml version="1.0"?>
+<!-- hand-made test file: BigEndian, UInt32 headers, base64 header encoded alone -->
+<VTKFile type="UnstructuredGrid" version="0.1" byte_order="BigEndian" made_by="hand">
+  <UnstructuredGrid>
+    <FieldData>
+      <DataArray type="Float64" Name="TimeValue" NumberOfTuples="1" format="ascii">1.5</DataArray>
+    </FieldData>
+    <Piece NumberOfPoints="5" NumberOfCells="2">
+      <PointData Vectors="displacement">
+        <DataArray type="Float64" Name="displacement" NumberOfComponents="3" format="binary" RangeMin="0" RangeMax="0.0022">
+          <InformationKey name="L2_NORM_RANGE" location="vtkDataArray" length="2">
+            <Value index="0">0</Value>
+            <Value index="1">0.0022</Value>
+          </InformationKey>
+          {wrapped}
+        </DataArray>
+        <DataArray type="UInt16" Name="label" format="binary">{b64_header_alone("H", [1000 + i for i in range(5)])}</DataArray>
+      </PointData>
+      <CellData>
+        <DataArray type="Int16" Name="zone" format="binary">{b64_header_alone("h", [-5, 7])}</DataArray>
+        <DataArray type="Int8" Name="sign" format="ascii">	-1	1	</DataArray>
+      </CellData>
+      <Points>
+        <DataArray type="Float32" Name="Points" NumberOfComponents="3" format="binary">{b64_header_alone("f", flat)}</DataArray>
+      </Points>
+      <Cells>
+        <DataArray type="Int32" Name="connectivity" format="binary">{b64_header_alone("i", [0, 1, 2, 3, 1, 4, 2])}</DataArray>
+        <DataArray type="UInt32" Name="offsets" format="binary">{b64_header_alone("I", [4, 7])}</DataArray>
+        <DataArray type="UInt8" Name="types" format="binary">{b64_header_alone("B", [9, 5])}</DataArray>
+      </Cells>
+    </Piece>
+  </UnstructuredGrid>
+</VTKFile>
+"""
+    with open("hand_bigendian_header_alone.vtu", "w") as f:
+        f.write(text)
+
+
 if __name__ == "__main__":
     main()
+    hand_made_big_endian()
