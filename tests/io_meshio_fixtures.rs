@@ -63,13 +63,9 @@ fn check(g: &RawGrid, points: usize, types: &[u8], rel: f64) {
     assert_eq!((t.components, t.scalar_type), (1, ScalarType::Float32));
     for (i, p) in g.points.iter().enumerate() {
         let want = [0.001 * p[0], -0.002 * p[1], 0.0005 * p[2]];
-        for k in 0..3 {
-            assert!(
-                close(u.values[3 * i + k], want[k]),
-                "point {i} comp {k}: {} vs {}",
-                u.values[3 * i + k],
-                want[k]
-            );
+        for (k, w) in want.iter().enumerate() {
+            let got = u.values[3 * i + k];
+            assert!(close(got, *w), "point {i} comp {k}: {got} vs {w}");
         }
         let tw = (p[0] + 2.0 * p[1] + 3.0 * p[2]) as f32 as f64;
         assert!(close(t.values[i], tw), "point {i}: {} vs {tw}", t.values[i]);

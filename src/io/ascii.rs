@@ -101,7 +101,7 @@ fn parse_into<T: Target>(text: &str, st: ScalarType, out: &mut Vec<T>) -> Result
                 return Err(BadToken {
                     index: base + i,
                     token: shorten(tok),
-                    expected: format!("a {} number", st.vtk_name()),
+                    expected: format!("{} {} number", article(st), st.vtk_name()),
                 })
             }
         };
@@ -167,6 +167,15 @@ fn parse_token(tok: &str, st: ScalarType) -> Option<Num> {
 fn integral(tok: &str) -> Option<i64> {
     let f = tok.parse::<f64>().ok()?;
     (f.is_finite() && f.fract() == 0.0 && f.abs() < 9.0e15).then_some(f as i64)
+}
+
+/// "an" before Int types, "a" before the others (UInt is read "you-int").
+fn article(st: ScalarType) -> &'static str {
+    if st.vtk_name().starts_with("Int") {
+        "an"
+    } else {
+        "a"
+    }
 }
 
 /// A token cut to a readable length for messages.

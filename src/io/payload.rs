@@ -129,7 +129,7 @@ pub(crate) fn binary_bytes<'b>(
             let region = Region {
                 bytes: &chars,
                 base: 0,
-                name: format!("the inline base64 text of {array}"),
+                name: "the inline base64 text".to_string(),
             };
             base64_array(ctx, &region, array).map(Cow::Owned)
         }
