@@ -6,3 +6,4 @@
 //! into energy-norm error indicators, and [`report`] presents them.
 
 pub mod element;
+pub mod io;

@@ -1,0 +1,88 @@
+//! Writing a file so that readers never see it half-written.
+
+use std::fs;
+use std::io::{BufWriter, Write};
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
+
+use super::error::IoError;
+
+/// Distinguishes temporary files of concurrent writes within one process.
+static TEMP_COUNTER: AtomicU64 = AtomicU64::new(0);
+
+/// True when `a` and `b` name the same existing file (same inode, or same canonical path).
+fn same_file(a: &Path, b: &Path) -> bool {
+    let (Ok(ma), Ok(mb)) = (fs::metadata(a), fs::metadata(b)) else {
+        return false;
+    };
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        if ma.dev() == mb.dev() && ma.ino() == mb.ino() {
+            return true;
+        }
+    }
+    let _ = (ma, mb);
+    matches!((fs::canonicalize(a), fs::canonicalize(b)), (Ok(x), Ok(y)) if x == y)
+}
+
+/// A temporary name next to `path`: `.NAME.PID.N.tmp`.
+fn temp_path(path: &Path) -> PathBuf {
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "output".to_string());
+    let n = TEMP_COUNTER.fetch_add(1, Ordering::Relaxed);
+    let tmp = format!(".{name}.{}.{n}.tmp", std::process::id());
+    match path.parent() {
+        Some(dir) => dir.join(tmp),
+        None => PathBuf::from(tmp),
+    }
+}
+
+/// Writes to a temporary file in the same directory, then renames over `path`, so a failure never
+/// leaves a half-written file; refuses (error) when `path` is the same file as `protect` (the input).
+///
+/// `f` receives a buffered writer; it is flushed and synced before the rename. On any error the
+/// temporary file is removed and `path` is left as it was.
+pub fn write_atomically(
+    path: &Path,
+    protect: Option<&Path>,
+    f: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
+) -> Result<(), IoError> {
+    let shown = path.display().to_string();
+    if let Some(input) = protect {
+        if same_file(path, input) {
+            return Err(IoError::WouldOverwriteInput {
+                path: shown,
+                input: input.display().to_string(),
+            });
+        }
+    }
+    let tmp = temp_path(path);
+    let io = |source| IoError::Io {
+        path: shown.clone(),
+        source,
+    };
+    let file = fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(&tmp)
+        .map_err(|source| IoError::Io {
+            path: tmp.display().to_string(),
+            source,
+        })?;
+    let result = (|| {
+        let mut w = BufWriter::with_capacity(1 << 20, file);
+        f(&mut w)?;
+        let file = w.into_inner().map_err(|e| e.into_error())?;
+        file.sync_all()?;
+        drop(file);
+        fs::rename(&tmp, path)
+    })();
+    if let Err(e) = result {
+        let _ = fs::remove_file(&tmp);
+        return Err(io(e));
+    }
+    Ok(())
+}
