@@ -31,6 +31,7 @@ fn disp(p: [f64; 3]) -> [f64; 3] {
     [0.001 * p[0], -0.002 * p[1], 0.0]
 }
 
+#[allow(clippy::too_many_arguments)] // a test fixture writer: each argument is one array of the piece
 fn write_piece(
     path: &Path,
     points: &[[f64; 3]],

@@ -46,3 +46,8 @@ pub use pvtu::{read_pvtu, GLOBAL_ID_NAMES, MERGE_TOLERANCE};
 pub use read_vtu::{read_results, read_vtu, read_vtu_bytes};
 pub use scalar::{ByteOrder, HeaderType, ScalarType};
 pub use write::{write_vtu, ArrayData, ArrayView, Encoding, GridView, WriteOptions};
+
+mod annotated;
+mod model;
+pub use annotated::{write_model_vtu, Field, FieldValues};
+pub use model::{build_model, ModelError, ModelNotes, ModelOptions, USUAL_DISPLACEMENT_NAMES};

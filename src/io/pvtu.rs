@@ -311,7 +311,7 @@ fn stitch(file: &str, sources: &[String], pieces: Vec<RawGrid>) -> Result<RawGri
         .map(|p| {
             let ghost = p.cell_array(GHOST);
             (0..p.cell_count())
-                .map(|c| ghost.map_or(true, |g| (g.values[c * g.components] as u64) & 1 == 0))
+                .map(|c| ghost.is_none_or(|g| (g.values[c * g.components] as u64) & 1 == 0))
                 .collect()
         })
         .collect();

@@ -1,0 +1,105 @@
+//! Raw command-line flags (clap). Checking and defaults live with each command.
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use std::path::PathBuf;
+
+/// hone: how large is the discretisation error of a finite-element result, where does it sit,
+/// and what should the next mesh look like.
+#[derive(Debug, Parser)]
+#[command(name = "hone", version, about, long_about = None)]
+pub struct Cli {
+    /// Print one JSON object on stdout instead of the text summary.
+    #[arg(long, global = true)]
+    pub json: bool,
+    /// No progress display.
+    #[arg(long, global = true)]
+    pub quiet: bool,
+    /// Worker threads (default: all cores). Results are identical for any count.
+    #[arg(long, global = true, value_name = "N")]
+    pub threads: Option<usize>,
+    /// The command.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// hone's commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// List what a results file holds: cell types and counts, arrays, bounding box, dimension.
+    Inspect(InspectArgs),
+    /// Recover stresses (SPR) and estimate the energy-norm discretisation error per element.
+    Estimate(EstimateArgs),
+}
+
+/// `hone inspect FILE`.
+#[derive(Debug, Args)]
+pub struct InspectArgs {
+    /// Results file (.vtu or .pvtu).
+    pub file: PathBuf,
+}
+
+/// Material, analysis mode and input-array options shared by the commands that compute.
+#[derive(Debug, Args, Clone, Default)]
+pub struct ModelArgs {
+    /// Young's modulus E (any consistent unit set).
+    #[arg(long, value_name = "E")]
+    pub youngs: Option<f64>,
+    /// Poisson's ratio nu.
+    #[arg(long, value_name = "NU")]
+    pub poisson: Option<f64>,
+    /// JSON file mapping zone ids to materials: {"1": {"youngs": E, "poisson": nu}, ...}.
+    #[arg(long, value_name = "FILE", requires = "zone_array")]
+    pub materials: Option<PathBuf>,
+    /// Integer cell array holding each cell's zone id (used with --materials).
+    #[arg(long, value_name = "NAME")]
+    pub zone_array: Option<String>,
+    /// 2D plane stress (give --thickness; default 1).
+    #[arg(long, conflicts_with_all = ["plane_strain", "axisymmetric"])]
+    pub plane_stress: bool,
+    /// 2D plane strain, per unit thickness.
+    #[arg(long, conflicts_with = "axisymmetric")]
+    pub plane_strain: bool,
+    /// 2D axisymmetric about the y axis (x = radius).
+    #[arg(long)]
+    pub axisymmetric: bool,
+    /// Plane-stress thickness.
+    #[arg(long, value_name = "T")]
+    pub thickness: Option<f64>,
+    /// Displacement point array (default: the first of displacement, displacements, disp, u).
+    #[arg(long, value_name = "NAME")]
+    pub displacement_array: Option<String>,
+    /// Estimate on the supported cells and leave other cell types out.
+    #[arg(long)]
+    pub skip_unsupported: bool,
+}
+
+/// Stress recovery method.
+#[derive(Copy, Clone, Debug, PartialEq, Eq, ValueEnum)]
+pub enum RecoveryArg {
+    /// Superconvergent patch recovery (Zienkiewicz-Zhu).
+    Spr,
+    /// Simple nodal averaging, for comparison.
+    Average,
+}
+
+/// `hone estimate FILE`.
+#[derive(Debug, Args)]
+pub struct EstimateArgs {
+    /// Results file (.vtu or .pvtu) with a displacement point array.
+    pub file: PathBuf,
+    /// Material and mode.
+    #[command(flatten)]
+    pub model: ModelArgs,
+    /// Stress recovery method.
+    #[arg(long, value_enum, default_value = "spr")]
+    pub recovery: RecoveryArg,
+    /// Write an annotated VTU with the recovered stresses and error fields.
+    #[arg(long, value_name = "PATH")]
+    pub out: Option<PathBuf>,
+    /// Write the annotated VTU as ascii (for inspection) instead of appended raw binary.
+    #[arg(long, requires = "out")]
+    pub ascii: bool,
+    /// How many of the largest element errors to list.
+    #[arg(long, default_value_t = 10, value_name = "N")]
+    pub top: usize,
+}

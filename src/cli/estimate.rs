@@ -1,0 +1,310 @@
+//! `hone estimate`: read, check, recover, estimate, report, optionally write the annotated VTU.
+
+use super::args::{EstimateArgs, RecoveryArg};
+use super::model_options::{analysis_mode, describe, materials, model_options};
+use super::progress::Stages;
+use super::Outcome;
+use crate::estimate::{estimate, Estimate};
+use crate::io::{
+    build_model, read_results, write_model_vtu, Encoding, Field, FieldValues, WriteOptions,
+};
+use crate::material::{von_mises, AnalysisMode, MaterialMap};
+use crate::mesh::{check_geometry, BadElementKind, BoundaryFacets, Model, NodeElements};
+use crate::recovery::{recover, sample_stresses, ElementMaterials, Recovered, RecoveryMethod};
+use crate::report::{EstimateReport, TopElement};
+use anyhow::{anyhow, bail, Context, Result};
+use std::io::Write;
+
+/// The result of the computing stages of an estimate.
+pub struct Computed {
+    /// Recovered stresses.
+    pub recovered: Recovered,
+    /// Error indicators.
+    pub estimate: Estimate,
+}
+
+/// Lists at most ten cell ids and the total count.
+fn cell_list(cells: &[u32]) -> String {
+    let shown: Vec<String> = cells.iter().take(10).map(|c| c.to_string()).collect();
+    if cells.len() > 10 {
+        format!("{} and {} more", shown.join(", "), cells.len() - 10)
+    } else {
+        shown.join(", ")
+    }
+}
+
+/// Runs geometry check, stresses, recovery and indicators on a model. `file` names the input in
+/// messages; `stages` (optional) shows progress.
+pub fn compute(
+    model: &Model,
+    map: &MaterialMap,
+    mode: AnalysisMode,
+    method: RecoveryMethod,
+    file: &str,
+    stages: Option<&Stages>,
+) -> Result<Computed> {
+    let stage = |m: &'static str| {
+        if let Some(s) = stages {
+            s.stage(m)
+        }
+    };
+    stage("checking element geometry");
+    let bad = check_geometry(&model.mesh);
+    if !bad.is_empty() {
+        let inverted: Vec<u32> = bad
+            .iter()
+            .filter(|b| b.kind == BadElementKind::Inverted)
+            .map(|b| b.file_cell)
+            .collect();
+        let degenerate: Vec<u32> = bad
+            .iter()
+            .filter(|b| b.kind == BadElementKind::Degenerate)
+            .map(|b| b.file_cell)
+            .collect();
+        let mut parts = Vec::new();
+        if !inverted.is_empty() {
+            parts.push(format!(
+                "{} inverted cells (negative Jacobian: mirrored node order or folded element): {}",
+                inverted.len(),
+                cell_list(&inverted)
+            ));
+        }
+        if !degenerate.is_empty() {
+            parts.push(format!(
+                "{} degenerate cells (zero or non-finite Jacobian: collapsed element): {}",
+                degenerate.len(),
+                cell_list(&degenerate)
+            ));
+        }
+        bail!(
+            "{file}: {}; expected every cell to have a positive Jacobian in VTK node order",
+            parts.join("; ")
+        );
+    }
+    let materials =
+        ElementMaterials::new(&model.mesh, map, mode).map_err(|e| anyhow!("{file}: {e}"))?;
+    stage("FE stresses at sampling points");
+    let samples = sample_stresses(model, &materials).map_err(|cells| {
+        anyhow!(
+            "{file}: inverted cells at sampling points: {}",
+            cell_list(&cells)
+        )
+    })?;
+    stage("adjacency and boundary");
+    let adjacency = NodeElements::new(&model.mesh);
+    let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
+    stage("stress recovery");
+    let recovered = recover(model, &materials, &samples, &adjacency, &boundary, method);
+    drop(samples);
+    stage("error indicators");
+    let estimate = estimate(model, &materials, &recovered).map_err(|cells| {
+        anyhow!(
+            "{file}: inverted cells at quadrature points: {}",
+            cell_list(&cells)
+        )
+    })?;
+    Ok(Computed {
+        recovered,
+        estimate,
+    })
+}
+
+/// Mean length of the element's vertex-to-vertex edges (the glossary's `size_now`).
+pub fn size_now(model: &Model) -> Vec<f64> {
+    let mesh = &model.mesh;
+    (0..mesh.element_count())
+        .map(|e| {
+            let (kind, nodes) = mesh.element(e);
+            let edges = kind.edges();
+            let sum: f64 = edges
+                .iter()
+                .map(|[a, b]| {
+                    let p = mesh.points[nodes[*a] as usize];
+                    let q = mesh.points[nodes[*b] as usize];
+                    ((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2) + (p[2] - q[2]).powi(2)).sqrt()
+                })
+                .sum();
+            sum / edges.len() as f64
+        })
+        .collect()
+}
+
+pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcome> {
+    let file = args.file.display().to_string();
+    let stages = Stages::new(7 + u64::from(args.out.is_some()), quiet || json);
+    stages.stage("reading");
+    let raw = read_results(&args.file)?;
+    let (model, notes) = build_model(&raw, &file, &model_options(&args.model))?;
+    drop(raw);
+    let mode = analysis_mode(&args.model, model.mesh.dimension, &file)?;
+    let map = materials(&args.model)?;
+    let method = match args.recovery {
+        RecoveryArg::Spr => RecoveryMethod::Spr,
+        RecoveryArg::Average => RecoveryMethod::Average,
+    };
+    let computed = compute(&model, &map, mode, method, &file, Some(&stages))?;
+    let est = &computed.estimate;
+    let mut warnings = Vec::new();
+    for (vtk, count) in &notes.skipped {
+        warnings.push(format!(
+            "{count} cells of type {} (VTK {vtk}) were left out (--skip-unsupported)",
+            crate::element::vtk_cell_type_name(*vtk)
+        ));
+    }
+    if est.energy_norm.is_nan() || est.energy_norm <= 0.0 {
+        warnings
+            .push("the displacement field carries no strain energy: nothing to estimate".into());
+    }
+    let averaged = computed
+        .recovered
+        .rules
+        .iter()
+        .filter(|r| **r == crate::recovery::NodeRule::Averaged)
+        .count();
+    if method == RecoveryMethod::Spr && averaged > 0 {
+        warnings.push(format!(
+            "{averaged} nodes could not be reached by any patch fit and use element averaging; the estimate is less reliable near them"
+        ));
+    }
+    if let Some(out) = &args.out {
+        stages.stage("writing annotated VTU");
+        write_annotated(out, &args.file, &model, &computed, args.ascii)
+            .with_context(|| format!("writing {}", out.display()))?;
+    }
+    stages.finish();
+    let report = EstimateReport {
+        file: file.clone(),
+        kinds: model
+            .mesh
+            .kind_counts()
+            .into_iter()
+            .map(|(k, n)| (k.name(), n))
+            .collect(),
+        elements: model.mesh.element_count(),
+        nodes: model.mesh.node_count(),
+        dimension: model.mesh.dimension,
+        mode: mode.name(),
+        material: match mode {
+            AnalysisMode::PlaneStress { thickness } => {
+                format!("{}, thickness {thickness}", describe(&map))
+            }
+            _ => describe(&map),
+        },
+        recovery: match method {
+            RecoveryMethod::Spr => "superconvergent patch recovery (SPR)",
+            RecoveryMethod::Average => "nodal averaging",
+        },
+        recovery_rules: computed
+            .recovered
+            .rule_counts()
+            .into_iter()
+            .map(|(r, n)| (r.describe(), n))
+            .collect(),
+        energy_norm: est.energy_norm,
+        error_norm: est.error_norm,
+        relative_error: est.relative_error,
+        elements_for_half: est.concentration(0.5),
+        elements_for_ninety: est.concentration(0.9),
+        top_elements: est
+            .top_elements(args.top)
+            .into_iter()
+            .map(|e| TopElement {
+                id: model.mesh.file_cell[e],
+                kind: model.mesh.element(e).0.name(),
+                centroid: model.mesh.centroid(e),
+                error_energy: est.error_energy(e),
+                error_share: est.error_share(e),
+            })
+            .collect(),
+        warnings,
+        notes: if notes.reoriented_wedges > 0 {
+            vec![format!(
+                "{} wedge cells use the other corner handedness (face 0-1-2 facing 3-4-5); they were reordered",
+                notes.reoriented_wedges
+            )]
+        } else {
+            Vec::new()
+        },
+    };
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    if json {
+        serde_json::to_writer_pretty(&mut out, &report.to_json())?;
+        writeln!(out)?;
+    } else {
+        report.write_text(&mut out)?;
+    }
+    Ok(if report.warnings.is_empty() {
+        Outcome::Ok
+    } else {
+        Outcome::Warnings
+    })
+}
+
+/// Writes the annotated VTU with the fields the estimate knows.
+pub fn write_annotated(
+    out: &std::path::Path,
+    input: &std::path::Path,
+    model: &Model,
+    computed: &Computed,
+    ascii: bool,
+) -> Result<()> {
+    let est = &computed.estimate;
+    let n = model.mesh.element_count();
+    let nodal = computed.recovered.nodal_field(model.mesh.node_count());
+    let stress: Vec<f64> = nodal.iter().flatten().copied().collect();
+    let vm: Vec<f64> = nodal.iter().map(von_mises).collect();
+    let error_energy: Vec<f64> = (0..n).map(|e| est.error_energy(e)).collect();
+    let error_share: Vec<f64> = (0..n).map(|e| est.error_share(e)).collect();
+    let error_density: Vec<f64> = (0..n).map(|e| est.error_density(e)).collect();
+    let sizes = size_now(model);
+    let options = WriteOptions {
+        encoding: if ascii {
+            Encoding::Ascii
+        } else {
+            Encoding::AppendedRaw
+        },
+        ..WriteOptions::default()
+    };
+    write_model_vtu(
+        out,
+        Some(input),
+        model,
+        &[
+            Field {
+                name: "stress_recovered",
+                components: 6,
+                values: FieldValues::F64(&stress),
+            },
+            Field {
+                name: "von_mises_recovered",
+                components: 1,
+                values: FieldValues::F64(&vm),
+            },
+        ],
+        &[
+            Field {
+                name: "error_energy",
+                components: 1,
+                values: FieldValues::F64(&error_energy),
+            },
+            Field {
+                name: "error_share",
+                components: 1,
+                values: FieldValues::F64(&error_share),
+            },
+            Field {
+                name: "error_density",
+                components: 1,
+                values: FieldValues::F64(&error_density),
+            },
+            Field {
+                name: "size_now",
+                components: 1,
+                values: FieldValues::F64(&sizes),
+            },
+        ],
+        &options,
+    )?;
+    Ok(())
+}

@@ -1,0 +1,182 @@
+//! Energy-norm error indicators (Zienkiewicz & Zhu 1987; 1992 part 2).
+//!
+//! Per element K, with sigma* the recovered field interpolated by the element's own shape
+//! functions and sigma_h the FE stress, both at the element's full quadrature points:
+//!
+//! * ||e||_K^2 = integral over K of (sigma* - sigma_h)^T C (sigma* - sigma_h)
+//! * ||u||_K^2 = integral over K of sigma_h^T C sigma_h (twice the element's strain energy)
+//! * eta = ||e|| / sqrt(||u||^2 + ||e||^2), the global relative error; the denominator
+//!   approximates the exact energy norm through Galerkin orthogonality (methods sheet 2).
+//!
+//! C is the compliance of the element's material in the analysis mode; the measure includes the
+//! thickness (plane stress) or 2 pi r (axisymmetric). Global sums run over the per-element values
+//! in element order, so results are bit-identical for any number of threads.
+
+use crate::element::TableRule;
+use crate::mesh::Model;
+use crate::recovery::{ElementData, ElementMaterials, Recovered};
+use rayon::prelude::*;
+
+/// Error indicators of every element and their global sums.
+#[derive(Clone, Debug)]
+pub struct Estimate {
+    /// ||e||_K^2 per element (global element order).
+    pub error_sq: Vec<f64>,
+    /// ||u_h||_K^2 per element.
+    pub energy_sq: Vec<f64>,
+    /// Geometric area (2D) or volume (3D) of each element, without thickness or 2 pi r.
+    pub measure: Vec<f64>,
+    /// ||e|| = sqrt(sum ||e||_K^2).
+    pub error_norm: f64,
+    /// ||u_h|| = sqrt(sum ||u||_K^2).
+    pub energy_norm: f64,
+    /// eta = ||e|| / sqrt(||u||^2 + ||e||^2), a fraction.
+    pub relative_error: f64,
+}
+
+impl Estimate {
+    /// ||e||_K of element `e`.
+    pub fn error_energy(&self, e: usize) -> f64 {
+        self.error_sq[e].sqrt()
+    }
+
+    /// Share of the total error squared held by element `e`.
+    pub fn error_share(&self, e: usize) -> f64 {
+        let total = self.error_norm * self.error_norm;
+        if total > 0.0 {
+            self.error_sq[e] / total
+        } else {
+            0.0
+        }
+    }
+
+    /// ||e||_K^2 / measure_K, comparable across element sizes.
+    pub fn error_density(&self, e: usize) -> f64 {
+        if self.measure[e] > 0.0 {
+            self.error_sq[e] / self.measure[e]
+        } else {
+            0.0
+        }
+    }
+
+    /// Fewest elements whose error squared sums to at least `fraction` of the total.
+    pub fn concentration(&self, fraction: f64) -> usize {
+        let mut sorted = self.error_sq.clone();
+        sorted.par_sort_unstable_by(|a, b| b.total_cmp(a));
+        let total: f64 = self.error_sq.iter().sum();
+        if total.is_nan() || total <= 0.0 {
+            return 0;
+        }
+        let mut acc = 0.0;
+        for (i, v) in sorted.iter().enumerate() {
+            acc += v;
+            if acc >= fraction * total {
+                return i + 1;
+            }
+        }
+        sorted.len()
+    }
+
+    /// The `k` elements with the largest error, largest first (ties: lower index first).
+    pub fn top_elements(&self, k: usize) -> Vec<usize> {
+        let mut idx: Vec<usize> = (0..self.error_sq.len()).collect();
+        let k = k.min(idx.len());
+        if k == 0 {
+            return Vec::new();
+        }
+        let cmp = |a: &usize, b: &usize| {
+            self.error_sq[*b]
+                .total_cmp(&self.error_sq[*a])
+                .then(a.cmp(b))
+        };
+        idx.select_nth_unstable_by(k - 1, cmp);
+        idx.truncate(k);
+        idx.sort_by(cmp);
+        idx
+    }
+}
+
+/// Computes the indicators. Elements with det J <= 0 at a quadrature point are returned by file
+/// cell id (the geometry check normally rejects them first).
+pub fn estimate(
+    model: &Model,
+    materials: &ElementMaterials,
+    recovered: &Recovered,
+) -> Result<Estimate, Vec<u32>> {
+    let mesh = &model.mesh;
+    let dim = mesh.dimension;
+    let mode = materials.mode;
+    let n = mesh.element_count();
+    let mut error_sq = vec![0.0; n];
+    let mut energy_sq = vec![0.0; n];
+    let mut measure = vec![0.0; n];
+    let mut bad = Vec::new();
+    for block in &mesh.blocks {
+        let kind = block.kind;
+        let nn = kind.node_count();
+        let table = kind.table(TableRule::Full);
+        let range = block.first_element..block.first_element + block.len();
+        let failed: Vec<u32> = error_sq[range.clone()]
+            .par_iter_mut()
+            .zip(energy_sq[range.clone()].par_iter_mut())
+            .zip(measure[range].par_iter_mut())
+            .enumerate()
+            .filter_map(|(i, ((err, energy), meas))| {
+                let e = block.first_element + i;
+                let nodes = block.cell(i);
+                let data = ElementData::gather(model, kind, nodes);
+                let el = materials.of(e);
+                let zone = mesh.zone[e];
+                let mut nodal = [[0.0; 6]; crate::element::MAX_NODES];
+                for (a, &node) in nodes.iter().enumerate() {
+                    nodal[a] = *recovered.at(node, zone);
+                }
+                let (mut se, mut su, mut sm) = (0.0, 0.0, 0.0);
+                for k in 0..table.len() {
+                    let Some((strain, x, det)) = data.strain_at(table, k, dim, mode) else {
+                        return Some(mesh.file_cell[e]);
+                    };
+                    let sh = el.stress(&strain);
+                    let shape = table.n_at(k);
+                    let mut diff = [0.0; 6];
+                    for a in 0..nn {
+                        for c in 0..6 {
+                            diff[c] += shape[a] * nodal[a][c];
+                        }
+                    }
+                    for c in 0..6 {
+                        diff[c] -= sh[c];
+                    }
+                    let w = table.weights[k] * det;
+                    let wf = w * mode.measure_factor(x[0]);
+                    se += wf * el.energy_product(&diff, &diff);
+                    su += wf * el.energy_product(&sh, &sh);
+                    sm += w;
+                }
+                *err = se;
+                *energy = su;
+                *meas = sm;
+                None
+            })
+            .collect();
+        bad.extend(failed);
+    }
+    if !bad.is_empty() {
+        return Err(bad);
+    }
+    let total_error: f64 = error_sq.iter().sum();
+    let total_energy: f64 = energy_sq.iter().sum();
+    let denom = (total_energy + total_error).sqrt();
+    Ok(Estimate {
+        error_norm: total_error.sqrt(),
+        energy_norm: total_energy.sqrt(),
+        relative_error: if denom > 0.0 {
+            total_error.sqrt() / denom
+        } else {
+            0.0
+        },
+        error_sq,
+        energy_sq,
+        measure,
+    })
+}
