@@ -348,11 +348,30 @@ fn base64_array(ctx: &Ctx, region: &Region, array: &str) -> Result<Vec<u8>, IoEr
             array,
         )?
     } else {
+        // Joint stream: the groups holding the header end with the first data bytes; the
+        // rest is aligned and decodes straight into the output.
         let stop = b64_len(header_len + data_len);
         region.need(ctx, array, 0, stop)?;
-        let mut all = b64_decode(ctx, &chars[..stop as usize], 0, array)?;
-        all.drain(..(header_len as usize).min(all.len()));
-        all
+        let groups = header_len.div_ceil(3);
+        if stop <= groups * 4 {
+            let mut all = b64_decode(ctx, &chars[..stop as usize], 0, array)?;
+            all.drain(..(header_len as usize).min(all.len()));
+            all
+        } else {
+            let head = b64_decode(ctx, &chars[..(groups * 4) as usize], 0, array)?;
+            let lead = &head[(header_len as usize).min(head.len())..];
+            let mut out = vec![0u8; data_len as usize];
+            let n = lead.len().min(out.len());
+            out[..n].copy_from_slice(&lead[..n]);
+            b64_decode_into(
+                ctx,
+                &chars[(groups * 4) as usize..stop as usize],
+                &mut out[n..],
+                groups * 4,
+                array,
+            )?;
+            out
+        }
     };
     if data.len() as u64 != data_len {
         return Err(IoError::ArrayLength {
@@ -371,52 +390,90 @@ fn base64_array(ctx: &Ctx, region: &Region, array: &str) -> Result<Vec<u8>, IoEr
 /// Characters per parallel base64 work item (a multiple of 4).
 const B64_CHUNK: usize = 1 << 18;
 
-/// Decodes base64 characters (no whitespace) in parallel chunks. `pos` is the position of
+/// Number of bytes that base64 text `chars` decodes to (padding optional).
+fn b64_decoded_len(chars: &[u8]) -> Option<usize> {
+    let pad = chars
+        .iter()
+        .rev()
+        .take(2)
+        .take_while(|&&c| c == b'=')
+        .count();
+    let body = chars.len() - pad;
+    (body % 4 != 1).then_some(body / 4 * 3 + (body % 4).saturating_sub(1))
+}
+
+/// Decodes base64 characters (no whitespace) into a new buffer. `pos` is the position of
 /// `chars[0]` within the array's text, for messages.
 fn b64_decode(ctx: &Ctx, chars: &[u8], pos: u64, array: &str) -> Result<Vec<u8>, IoError> {
-    let body = chars.len()
-        - chars
-            .iter()
-            .rev()
-            .take(2)
-            .take_while(|&&c| c == b'=')
-            .count();
-    let bad = |at: u64, detail: String| IoError::Base64 {
+    let len = b64_decoded_len(chars).ok_or_else(|| {
+        b64_error(
+            ctx,
+            array,
+            pos + chars.len() as u64,
+            "a dangling character at the end".into(),
+        )
+    })?;
+    let mut out = vec![0u8; len];
+    b64_decode_into(ctx, chars, &mut out, pos, array)?;
+    Ok(out)
+}
+
+fn b64_error(ctx: &Ctx, array: &str, position: u64, detail: String) -> IoError {
+    IoError::Base64 {
         file: ctx.file.to_string(),
         array: array.to_string(),
-        position: pos + at,
+        position,
         detail,
-    };
-    if body % 4 == 1 {
-        return Err(bad(body as u64, "a dangling character at the end".into()));
     }
-    let len = body / 4 * 3 + (body % 4).saturating_sub(1);
-    let mut out = vec![0u8; len];
-    let results: Vec<Result<(), IoError>> =
-        out.par_chunks_mut(B64_CHUNK / 4 * 3)
-            .zip(chars.par_chunks(B64_CHUNK))
-            .enumerate()
-            .map(|(k, (o, c))| match B64.decode_slice(c, o) {
-                Ok(n) if n == o.len() => Ok(()),
-                Ok(n) => Err(bad(
-                    (k * B64_CHUNK) as u64,
-                    format!("a chunk decodes to {n} bytes instead of {}", o.len()),
-                )),
-                Err(e) => {
-                    let at = match &e {
-                        base64::DecodeSliceError::DecodeError(
-                            base64::DecodeError::InvalidByte(i, _),
-                        ) => *i,
-                        _ => 0,
-                    };
-                    Err(bad((k * B64_CHUNK + at) as u64, e.to_string()))
-                }
-            })
-            .collect();
-    for r in results {
-        r?;
+}
+
+/// Decodes base64 characters into exactly `out`, in parallel chunks.
+fn b64_decode_into(
+    ctx: &Ctx,
+    chars: &[u8],
+    out: &mut [u8],
+    pos: u64,
+    array: &str,
+) -> Result<(), IoError> {
+    if b64_decoded_len(chars) != Some(out.len()) {
+        return Err(b64_error(
+            ctx,
+            array,
+            pos,
+            format!(
+                "{} characters do not decode to the {} bytes its header announces",
+                chars.len(),
+                out.len()
+            ),
+        ));
     }
-    Ok(out)
+    let bad = |at: usize, detail: String| b64_error(ctx, array, pos + at as u64, detail);
+    let first_err = out
+        .par_chunks_mut(B64_CHUNK / 4 * 3)
+        .zip(chars.par_chunks(B64_CHUNK))
+        .enumerate()
+        .filter_map(|(k, (o, c))| match B64.decode_slice(c, o) {
+            Ok(n) if n == o.len() => None,
+            Ok(n) => Some(bad(
+                k * B64_CHUNK,
+                format!("a chunk decodes to {n} bytes instead of {}", o.len()),
+            )),
+            Err(base64::DecodeSliceError::DecodeError(base64::DecodeError::InvalidByte(i, b))) => {
+                Some(bad(
+                    k * B64_CHUNK + i,
+                    format!("found {:?} (byte {b})", b as char),
+                ))
+            }
+            Err(e) => Some(bad(k * B64_CHUNK, e.to_string())),
+        })
+        .min_by_key(|e| match e {
+            IoError::Base64 { position, .. } => *position,
+            _ => u64::MAX,
+        });
+    match first_err {
+        Some(e) => Err(e),
+        None => Ok(()),
+    }
 }
 
 /// Decompresses zlib blocks in parallel into one buffer.

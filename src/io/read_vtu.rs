@@ -329,10 +329,17 @@ pub(crate) fn check_cells(
             ),
         });
     }
-    if let Some(pos) = connectivity
-        .par_iter()
-        .position_first(|&id| id as u64 >= n_points)
-    {
+    const CHUNK: usize = 1 << 16;
+    let first_bad = connectivity
+        .par_chunks(CHUNK)
+        .enumerate()
+        .filter_map(|(k, ids)| {
+            ids.iter()
+                .position(|&id| id as u64 >= n_points)
+                .map(|i| k * CHUNK + i)
+        })
+        .min();
+    if let Some(pos) = first_bad {
         let cell = offsets.partition_point(|&o| o <= pos as u64);
         return Err(IoError::PointOutOfRange {
             file: ctx.file.to_string(),

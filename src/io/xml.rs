@@ -583,11 +583,9 @@ fn appended_region<'a>(
     }
     let start = pos + skip + 1;
     let data = &bytes[start..];
-    let end = match encoding {
-        // Raw bytes may contain anything; the closing tag is the last one in the file.
-        AppendedEncoding::Raw => rfind(data, b"</AppendedData").unwrap_or(data.len()),
-        AppendedEncoding::Base64 => data.iter().position(|&b| b == b'<').unwrap_or(data.len()),
-    };
+    // The closing tag is the last one in the file (raw bytes may contain anything, and
+    // searching from the end is immediate for a complete file).
+    let end = rfind(data, b"</AppendedData").unwrap_or(data.len());
     Ok(Appended {
         encoding,
         data: &data[..end],
