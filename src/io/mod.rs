@@ -27,8 +27,12 @@
 //! blocks as VTK writes them. Connectivity and offsets are written as Int64, types as UInt8,
 //! points as 3-component Float64.
 
+#![warn(missing_docs)]
+
 mod ascii;
 mod atomic;
+mod decl;
+mod decode;
 mod encode;
 mod error;
 mod grid;

@@ -5,11 +5,12 @@ use std::path::Path;
 use rayon::prelude::*;
 
 use super::ascii::parse_ascii;
+use super::decl::{ArrayDecl, Document, PieceDecl, Storage};
 use super::error::{human_bytes, IoError};
 use super::grid::{DataArray, RawGrid};
 use super::payload::{binary_bytes, Ctx, ZLIB_MAX_RATIO};
 use super::scalar::{convert, value_text, ScalarType, Target};
-use super::xml::{parse_document, structure, ArrayDecl, Document, PieceDecl, Storage};
+use super::xml::{parse_document, structure};
 
 /// Reads a `.vtu` file. The file is memory-mapped, and raw appended arrays are converted
 /// straight from the map; it must not be modified by another process while it is read.
