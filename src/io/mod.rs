@@ -3,7 +3,7 @@
 //! This module stands alone: readers return a plain [`RawGrid`] (points, VTK cells, named arrays
 //! converted to `f64`), the writer takes a borrowed [`GridView`].
 //!
-//! # Reading ([`read_vtu`], [`read_vtu_bytes`], [`read_pvtu`], [`read_results`])
+//! # Reading ([`read_vtu()`], [`read_vtu_bytes()`], [`read_pvtu()`], [`read_results()`])
 //! * `VTKFile type="UnstructuredGrid"`, versions 0.1 and 1.0 (other version strings are read
 //!   the same way); `header_type` UInt32 (default) or UInt64; `byte_order` LittleEndian or
 //!   BigEndian; `compressor="vtkZLibDataCompressor"` (any other compressor is a clear error).
@@ -27,8 +27,12 @@
 //! blocks as VTK writes them. Connectivity and offsets are written as Int64, types as UInt8,
 //! points as 3-component Float64.
 
+#![warn(missing_docs)]
+
 mod ascii;
 mod atomic;
+mod decl;
+mod decode;
 mod encode;
 mod error;
 mod grid;

@@ -8,26 +8,13 @@
 
 use std::borrow::Cow;
 
-use base64::alphabet;
-use base64::engine::general_purpose::{GeneralPurpose, GeneralPurposeConfig};
-use base64::engine::DecodePaddingMode;
-use base64::Engine;
-use rayon::prelude::*;
-
+use super::decl::{AppendedEncoding, Document, Storage};
+use super::decode::{b64_decode, b64_decode_into, inflate, BlockTable};
 use super::error::{human_bytes, IoError};
 use super::scalar::{ByteOrder, HeaderType};
-use super::xml::{AppendedEncoding, Document, Storage};
 
 /// zlib's maximum compression ratio (deflate cannot expand a byte run by more than this).
 pub(crate) const ZLIB_MAX_RATIO: u64 = 1032;
-
-/// Lenient standard base64: padding optional, non-zero trailing bits accepted.
-const B64: GeneralPurpose = GeneralPurpose::new(
-    &alphabet::STANDARD,
-    GeneralPurposeConfig::new()
-        .with_decode_allow_trailing_bits(true)
-        .with_decode_padding_mode(DecodePaddingMode::Indifferent),
-);
 
 /// What the payload decoder needs to know about the file.
 pub(crate) struct Ctx<'f> {
@@ -167,17 +154,6 @@ pub(crate) fn binary_bytes<'b>(
             }
         }
     }
-}
-
-/// A zlib block table.
-struct BlockTable {
-    block_size: u64,
-    last: u64,
-    csizes: Vec<u64>,
-    /// Sum of `csizes`.
-    compressed: u64,
-    /// Total uncompressed size.
-    total: u64,
 }
 
 /// Parses `[B][last][csize..]` after the `nblocks` word and checks the sizes are plausible.
@@ -348,11 +324,30 @@ fn base64_array(ctx: &Ctx, region: &Region, array: &str) -> Result<Vec<u8>, IoEr
             array,
         )?
     } else {
+        // Joint stream: the groups holding the header end with the first data bytes; the
+        // rest is aligned and decodes straight into the output.
         let stop = b64_len(header_len + data_len);
         region.need(ctx, array, 0, stop)?;
-        let mut all = b64_decode(ctx, &chars[..stop as usize], 0, array)?;
-        all.drain(..(header_len as usize).min(all.len()));
-        all
+        let groups = header_len.div_ceil(3);
+        if stop <= groups * 4 {
+            let mut all = b64_decode(ctx, &chars[..stop as usize], 0, array)?;
+            all.drain(..(header_len as usize).min(all.len()));
+            all
+        } else {
+            let head = b64_decode(ctx, &chars[..(groups * 4) as usize], 0, array)?;
+            let lead = &head[(header_len as usize).min(head.len())..];
+            let mut out = vec![0u8; data_len as usize];
+            let n = lead.len().min(out.len());
+            out[..n].copy_from_slice(&lead[..n]);
+            b64_decode_into(
+                ctx,
+                &chars[(groups * 4) as usize..stop as usize],
+                &mut out[n..],
+                groups * 4,
+                array,
+            )?;
+            out
+        }
     };
     if data.len() as u64 != data_len {
         return Err(IoError::ArrayLength {
@@ -365,108 +360,5 @@ fn base64_array(ctx: &Ctx, region: &Region, array: &str) -> Result<Vec<u8>, IoEr
     match table {
         None => Ok(data),
         Some(t) => inflate(ctx, &t, &data, array),
-    }
-}
-
-/// Characters per parallel base64 work item (a multiple of 4).
-const B64_CHUNK: usize = 1 << 18;
-
-/// Decodes base64 characters (no whitespace) in parallel chunks. `pos` is the position of
-/// `chars[0]` within the array's text, for messages.
-fn b64_decode(ctx: &Ctx, chars: &[u8], pos: u64, array: &str) -> Result<Vec<u8>, IoError> {
-    let body = chars.len()
-        - chars
-            .iter()
-            .rev()
-            .take(2)
-            .take_while(|&&c| c == b'=')
-            .count();
-    let bad = |at: u64, detail: String| IoError::Base64 {
-        file: ctx.file.to_string(),
-        array: array.to_string(),
-        position: pos + at,
-        detail,
-    };
-    if body % 4 == 1 {
-        return Err(bad(body as u64, "a dangling character at the end".into()));
-    }
-    let len = body / 4 * 3 + (body % 4).saturating_sub(1);
-    let mut out = vec![0u8; len];
-    let results: Vec<Result<(), IoError>> =
-        out.par_chunks_mut(B64_CHUNK / 4 * 3)
-            .zip(chars.par_chunks(B64_CHUNK))
-            .enumerate()
-            .map(|(k, (o, c))| match B64.decode_slice(c, o) {
-                Ok(n) if n == o.len() => Ok(()),
-                Ok(n) => Err(bad(
-                    (k * B64_CHUNK) as u64,
-                    format!("a chunk decodes to {n} bytes instead of {}", o.len()),
-                )),
-                Err(e) => {
-                    let at = match &e {
-                        base64::DecodeSliceError::DecodeError(
-                            base64::DecodeError::InvalidByte(i, _),
-                        ) => *i,
-                        _ => 0,
-                    };
-                    Err(bad((k * B64_CHUNK + at) as u64, e.to_string()))
-                }
-            })
-            .collect();
-    for r in results {
-        r?;
-    }
-    Ok(out)
-}
-
-/// Decompresses zlib blocks in parallel into one buffer.
-fn inflate(ctx: &Ctx, table: &BlockTable, blocks: &[u8], array: &str) -> Result<Vec<u8>, IoError> {
-    let nblocks = table.csizes.len();
-    let mut starts = Vec::with_capacity(nblocks);
-    let mut at = 0usize;
-    for &c in &table.csizes {
-        starts.push(at);
-        at += c as usize;
-    }
-    let mut out = vec![0u8; table.total as usize];
-    let bsize = (table.block_size as usize).max(1);
-    let first_err = out
-        .par_chunks_mut(bsize)
-        .enumerate()
-        .filter_map(|(k, o)| {
-            let input = &blocks[starts[k]..starts[k] + table.csizes[k] as usize];
-            inflate_block(input, o).err().map(|found| (k, found))
-        })
-        .min_by_key(|(k, _)| *k);
-    if let Some((k, found)) = first_err {
-        let expected_len = if k + 1 == nblocks {
-            table.last
-        } else {
-            table.block_size
-        };
-        return Err(IoError::Zlib {
-            file: ctx.file.to_string(),
-            array: array.to_string(),
-            block: k as u64,
-            blocks: nblocks as u64,
-            found,
-            expected: format!("a zlib stream of {expected_len} bytes"),
-        });
-    }
-    Ok(out)
-}
-
-/// Inflates one zlib stream into exactly `out`.
-fn inflate_block(input: &[u8], out: &mut [u8]) -> Result<(), String> {
-    let mut d = flate2::Decompress::new(true);
-    match d.decompress(input, out, flate2::FlushDecompress::Finish) {
-        Ok(flate2::Status::StreamEnd) if d.total_out() as usize == out.len() => Ok(()),
-        Ok(flate2::Status::StreamEnd) => Err(format!("it decompresses to {} bytes", d.total_out())),
-        Ok(_) if d.total_out() as usize == out.len() => Err("it decompresses to more bytes".into()),
-        Ok(_) => Err(format!(
-            "the stream ends early after {} bytes",
-            d.total_out()
-        )),
-        Err(e) => Err(format!("invalid zlib data ({e})")),
     }
 }

@@ -5,11 +5,12 @@ use std::path::Path;
 use rayon::prelude::*;
 
 use super::ascii::parse_ascii;
+use super::decl::{ArrayDecl, Document, PieceDecl, Storage};
 use super::error::{human_bytes, IoError};
 use super::grid::{DataArray, RawGrid};
 use super::payload::{binary_bytes, Ctx, ZLIB_MAX_RATIO};
 use super::scalar::{convert, value_text, ScalarType, Target};
-use super::xml::{parse_document, structure, ArrayDecl, Document, PieceDecl, Storage};
+use super::xml::{parse_document, structure};
 
 /// Reads a `.vtu` file. The file is memory-mapped, and raw appended arrays are converted
 /// straight from the map; it must not be modified by another process while it is read.
@@ -329,10 +330,17 @@ pub(crate) fn check_cells(
             ),
         });
     }
-    if let Some(pos) = connectivity
-        .par_iter()
-        .position_first(|&id| id as u64 >= n_points)
-    {
+    const CHUNK: usize = 1 << 16;
+    let first_bad = connectivity
+        .par_chunks(CHUNK)
+        .enumerate()
+        .filter_map(|(k, ids)| {
+            ids.iter()
+                .position(|&id| id as u64 >= n_points)
+                .map(|i| k * CHUNK + i)
+        })
+        .min();
+    if let Some(pos) = first_bad {
         let cell = offsets.partition_point(|&o| o <= pos as u64);
         return Err(IoError::PointOutOfRange {
             file: ctx.file.to_string(),

@@ -161,6 +161,32 @@ fn check_view(grid: &GridView) -> io::Result<()> {
     Ok(())
 }
 
+/// With 4-byte header words, every length written must fit in 32 bits.
+fn check_header_words(all: &[&Entry], opts: &WriteOptions, compressed: bool) -> io::Result<()> {
+    if opts.header != HeaderType::UInt32 {
+        return Ok(());
+    }
+    let max = u32::MAX as u64;
+    for e in all {
+        let bytes = e.src.byte_len() as u64;
+        let blocks = bytes.div_ceil(opts.block_size.max(1) as u64);
+        let (what, n) = if !compressed {
+            ("bytes", bytes)
+        } else if opts.block_size as u64 > max {
+            ("bytes per zlib block", opts.block_size as u64)
+        } else {
+            ("zlib blocks", blocks)
+        };
+        if n > max {
+            return Err(invalid(format!(
+                "cannot write array '{}' with UInt32 header words: it needs {n} {what}, more than 4294967295; use HeaderType::UInt64",
+                e.name
+            )));
+        }
+    }
+    Ok(())
+}
+
 /// Escapes text for an XML attribute value.
 fn escape(s: &str) -> String {
     let mut o = String::with_capacity(s.len());
@@ -220,6 +246,7 @@ pub fn write_vtu<W: Write>(w: W, grid: &GridView, opts: &WriteOptions) -> io::Re
         ("Cells", &cells),
     ];
     let all: Vec<&Entry> = sections.iter().flat_map(|(_, e)| e.iter()).collect();
+    check_header_words(&all, opts, zlevel.is_some())?;
 
     // Compress everything first when needed: appended offsets depend on compressed sizes.
     let zipped: Vec<Option<Zipped>> = match zlevel {
