@@ -49,56 +49,89 @@ pub enum ModelError {
         "{file}: cell {cell} is a {kind} (VTK type {vtk}) with {found} points, expected {expected}"
     )]
     CellSize {
+        /// File name.
         file: String,
+        /// Cell index in the file.
         cell: usize,
+        /// Element kind the type id names.
         kind: &'static str,
+        /// VTK type id.
         vtk: u8,
+        /// What the file has.
         found: usize,
+        /// What the type needs.
         expected: usize,
     },
     /// Nothing left to compute on.
     #[error("{file}: no cells to estimate on ({total} cells in the file)")]
-    NoCells { file: String, total: usize },
+    NoCells {
+        /// File name.
+        file: String,
+        /// Cells in the file.
+        total: usize,
+    },
     /// 2D and 3D cells in one file.
     #[error("{file}: the file mixes {two_d} 2D cells with {three_d} 3D cells; boundary faces exported with a solid mesh can be left out with --skip-unsupported")]
     MixedDimension {
+        /// File name.
         file: String,
+        /// Number of 2D cells.
         two_d: usize,
+        /// Number of 3D cells.
         three_d: usize,
     },
     /// 2D cells not lying in a plane z = const.
     #[error("{file}: 2D cells span z from {z_min} to {z_max}; hone needs 2D meshes in a plane z = constant (shell and membrane results are not supported)")]
     NotPlanar {
+        /// File name.
         file: String,
+        /// Smallest z of the 2D cells.
         z_min: f64,
+        /// Largest z of the 2D cells.
         z_max: f64,
     },
     /// No displacement array.
     #[error("{file}: {wanted}; the file's point arrays are: {available}. Name the right one with --displacement-array")]
     MissingDisplacement {
+        /// File name.
         file: String,
+        /// What was looked for.
         wanted: String,
+        /// The point arrays the file has.
         available: String,
     },
     /// Displacement array of the wrong shape.
     #[error("{file}: point array '{array}' has {found} components, expected {expected} for a displacement")]
     DisplacementComponents {
+        /// File name.
         file: String,
+        /// The array name.
         array: String,
+        /// What the file has.
         found: usize,
+        /// Component counts allowed.
         expected: &'static str,
     },
     /// NaN or infinite displacement.
     #[error("{file}: point array '{array}' has a non-finite value ({value}) at point {point}")]
     NonFiniteDisplacement {
+        /// File name.
         file: String,
+        /// The array name.
         array: String,
+        /// Point index.
         point: usize,
+        /// The offending value.
         value: f64,
     },
     /// Zone array missing or malformed.
     #[error("{file}: {message}")]
-    Zone { file: String, message: String },
+    Zone {
+        /// File name.
+        file: String,
+        /// What is wrong.
+        message: String,
+    },
 }
 
 /// Builds the model, grouping cells by kind in order of first appearance.
