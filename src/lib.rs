@@ -16,4 +16,5 @@ pub mod io;
 pub mod material;
 pub mod mesh;
 pub mod recovery;
+pub mod reference;
 pub mod report;

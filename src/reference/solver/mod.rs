@@ -1,0 +1,1 @@
+//! Small-strain linear-elastic solver (being written).
