@@ -9,10 +9,10 @@ use crate::io::{
     build_model, read_results, write_model_vtu, Encoding, Field, FieldValues, WriteOptions,
 };
 use crate::material::{von_mises, AnalysisMode, MaterialMap};
-use crate::mesh::{check_geometry, BadElementKind, BoundaryFacets, Model, NodeElements};
+use crate::mesh::{BadElement, BadElementKind, BoundaryFacets, Model, NodeElements};
 use crate::recovery::{recover, sample_stresses, ElementMaterials, Recovered, RecoveryMethod};
 use crate::report::{EstimateReport, TopElement};
-use anyhow::{anyhow, bail, Context, Result};
+use anyhow::{anyhow, Context, Result};
 use std::io::Write;
 
 /// The result of the computing stages of an estimate.
@@ -33,7 +33,38 @@ fn cell_list(cells: &[u32]) -> String {
     }
 }
 
-/// Runs geometry check, stresses, recovery and indicators on a model. `file` names the input in
+/// The error for inverted or collapsed elements, listing their file ids by kind of failure.
+fn bad_elements(file: &str, bad: &[BadElement]) -> anyhow::Error {
+    let ids = |kind: BadElementKind| -> Vec<u32> {
+        bad.iter()
+            .filter(|b| b.kind == kind)
+            .map(|b| b.file_cell)
+            .collect()
+    };
+    let inverted = ids(BadElementKind::Inverted);
+    let degenerate = ids(BadElementKind::Degenerate);
+    let mut parts = Vec::new();
+    if !inverted.is_empty() {
+        parts.push(format!(
+            "{} inverted cells (negative Jacobian: mirrored node order or folded element): {}",
+            inverted.len(),
+            cell_list(&inverted)
+        ));
+    }
+    if !degenerate.is_empty() {
+        parts.push(format!(
+            "{} degenerate cells (zero or non-finite Jacobian: collapsed element): {}",
+            degenerate.len(),
+            cell_list(&degenerate)
+        ));
+    }
+    anyhow!(
+        "{file}: {}; expected every cell to have a positive Jacobian in VTK node order",
+        parts.join("; ")
+    )
+}
+
+/// Runs stresses (with the geometry check), recovery and indicators on a model. `file` names the input in
 /// messages; `stages` (optional) shows progress.
 pub fn compute(
     model: &Model,
@@ -48,48 +79,10 @@ pub fn compute(
             s.stage(m)
         }
     };
-    stage("checking element geometry");
-    let bad = check_geometry(&model.mesh);
-    if !bad.is_empty() {
-        let inverted: Vec<u32> = bad
-            .iter()
-            .filter(|b| b.kind == BadElementKind::Inverted)
-            .map(|b| b.file_cell)
-            .collect();
-        let degenerate: Vec<u32> = bad
-            .iter()
-            .filter(|b| b.kind == BadElementKind::Degenerate)
-            .map(|b| b.file_cell)
-            .collect();
-        let mut parts = Vec::new();
-        if !inverted.is_empty() {
-            parts.push(format!(
-                "{} inverted cells (negative Jacobian: mirrored node order or folded element): {}",
-                inverted.len(),
-                cell_list(&inverted)
-            ));
-        }
-        if !degenerate.is_empty() {
-            parts.push(format!(
-                "{} degenerate cells (zero or non-finite Jacobian: collapsed element): {}",
-                degenerate.len(),
-                cell_list(&degenerate)
-            ));
-        }
-        bail!(
-            "{file}: {}; expected every cell to have a positive Jacobian in VTK node order",
-            parts.join("; ")
-        );
-    }
     let materials =
         ElementMaterials::new(&model.mesh, map, mode).map_err(|e| anyhow!("{file}: {e}"))?;
     stage("FE stresses at sampling points");
-    let samples = sample_stresses(model, &materials).map_err(|cells| {
-        anyhow!(
-            "{file}: inverted cells at sampling points: {}",
-            cell_list(&cells)
-        )
-    })?;
+    let samples = sample_stresses(model, &materials).map_err(|bad| bad_elements(file, &bad))?;
     stage("adjacency and boundary");
     let adjacency = NodeElements::new(&model.mesh);
     let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
@@ -97,12 +90,8 @@ pub fn compute(
     let recovered = recover(model, &materials, &samples, &adjacency, &boundary, method);
     drop(samples);
     stage("error indicators");
-    let estimate = estimate(model, &materials, &recovered).map_err(|cells| {
-        anyhow!(
-            "{file}: inverted cells at quadrature points: {}",
-            cell_list(&cells)
-        )
-    })?;
+    let estimate =
+        estimate(model, &materials, &recovered).map_err(|bad| bad_elements(file, &bad))?;
     Ok(Computed {
         recovered,
         estimate,
@@ -131,7 +120,7 @@ pub fn size_now(model: &Model) -> Vec<f64> {
 
 pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let file = args.file.display().to_string();
-    let stages = Stages::new(7 + u64::from(args.out.is_some()), quiet || json);
+    let stages = Stages::new(6 + u64::from(args.out.is_some()), quiet || json);
     stages.stage("reading");
     let raw = read_results(&args.file)?;
     let (model, notes) = build_model(&raw, &file, &model_options(&args.model))?;

@@ -13,7 +13,7 @@
 //! in element order, so results are bit-identical for any number of threads.
 
 use crate::element::TableRule;
-use crate::mesh::Model;
+use crate::mesh::{BadElement, Model};
 use crate::recovery::{ElementData, ElementMaterials, Recovered};
 use rayon::prelude::*;
 
@@ -96,13 +96,13 @@ impl Estimate {
     }
 }
 
-/// Computes the indicators. Elements with det J <= 0 at a quadrature point are returned by file
-/// cell id (the geometry check normally rejects them first).
+/// Computes the indicators. Elements inverted or collapsed at a quadrature point are returned,
+/// in file order.
 pub fn estimate(
     model: &Model,
     materials: &ElementMaterials,
     recovered: &Recovered,
-) -> Result<Estimate, Vec<u32>> {
+) -> Result<Estimate, Vec<BadElement>> {
     let mesh = &model.mesh;
     let dim = mesh.dimension;
     let mode = materials.mode;
@@ -116,7 +116,7 @@ pub fn estimate(
         let nn = kind.node_count();
         let table = kind.table(TableRule::Full);
         let range = block.first_element..block.first_element + block.len();
-        let failed: Vec<u32> = error_sq[range.clone()]
+        let failed: Vec<BadElement> = error_sq[range.clone()]
             .par_iter_mut()
             .zip(energy_sq[range.clone()].par_iter_mut())
             .zip(measure[range].par_iter_mut())
@@ -133,8 +133,14 @@ pub fn estimate(
                 }
                 let (mut se, mut su, mut sm) = (0.0, 0.0, 0.0);
                 for k in 0..table.len() {
-                    let Some((strain, x, det)) = data.strain_at(table, k, dim, mode) else {
-                        return Some(mesh.file_cell[e]);
+                    let (strain, x, det) = match data.strain_at(table, k, dim, mode, false) {
+                        Ok(v) => v,
+                        Err(kind) => {
+                            return Some(BadElement {
+                                file_cell: mesh.file_cell[e],
+                                kind,
+                            })
+                        }
                     };
                     let sh = el.stress(&strain);
                     let shape = table.n_at(k);
@@ -162,6 +168,7 @@ pub fn estimate(
         bad.extend(failed);
     }
     if !bad.is_empty() {
+        bad.sort_by_key(|b| b.file_cell);
         return Err(bad);
     }
     let total_error: f64 = error_sq.iter().sum();

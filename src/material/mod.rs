@@ -123,12 +123,31 @@ impl AnalysisMode {
 
 /// Stiffness D and compliance C = D^-1 of one material in one mode, as 6x6 matrices on hone's
 /// component order, with the rows and columns of unused components zero.
+///
+/// In every mode both matrices are block diagonal: a 3x3 block on the normal components
+/// (xx, yy, zz) and a diagonal on the shear components (xy, yz, xz). The products used in hot
+/// loops work on that compact form (12 multiplications instead of 36).
 #[derive(Copy, Clone, Debug, PartialEq)]
 pub struct Elasticity {
     /// sigma = D epsilon (engineering shear strains).
     pub stiffness: [[f64; 6]; 6],
     /// epsilon = C sigma on the components the mode uses; C is what the energy norm integrates.
     pub compliance: [[f64; 6]; 6],
+    d_normal: [[f64; 3]; 3],
+    d_shear: [f64; 3],
+    c_normal: [[f64; 3]; 3],
+    c_shear: [f64; 3],
+}
+
+/// Splits a block-diagonal 6x6 matrix into its normal block and shear diagonal.
+fn compact(m: &[[f64; 6]; 6]) -> ([[f64; 3]; 3], [f64; 3]) {
+    let mut normal = [[0.0; 3]; 3];
+    for i in 0..3 {
+        for j in 0..3 {
+            normal[i][j] = m[i][j];
+        }
+    }
+    (normal, [m[3][3], m[4][4], m[5][5]])
 }
 
 impl Elasticity {
@@ -197,34 +216,43 @@ impl Elasticity {
                 c[3][3] = 2.0 * f;
             }
         }
+        let (d_normal, d_shear) = compact(&d);
+        let (c_normal, c_shear) = compact(&c);
         Self {
             stiffness: d,
             compliance: c,
+            d_normal,
+            d_shear,
+            c_normal,
+            c_shear,
         }
     }
 
     /// sigma = D epsilon.
     #[inline]
     pub fn stress(&self, strain: &SymTensor) -> SymTensor {
-        let mut s = [0.0; 6];
-        for (si, row) in s.iter_mut().zip(self.stiffness.iter()) {
-            *si = row.iter().zip(strain.iter()).map(|(a, b)| a * b).sum();
-        }
-        s
+        let d = &self.d_normal;
+        [
+            d[0][0] * strain[0] + d[0][1] * strain[1] + d[0][2] * strain[2],
+            d[1][0] * strain[0] + d[1][1] * strain[1] + d[1][2] * strain[2],
+            d[2][0] * strain[0] + d[2][1] * strain[1] + d[2][2] * strain[2],
+            self.d_shear[0] * strain[3],
+            self.d_shear[1] * strain[4],
+            self.d_shear[2] * strain[5],
+        ]
     }
 
     /// The energy density product a^T C b (twice the complementary energy density when a = b).
     #[inline]
     pub fn energy_product(&self, a: &SymTensor, b: &SymTensor) -> f64 {
+        let c = &self.c_normal;
         let mut acc = 0.0;
-        for i in 0..6 {
-            let mut row = 0.0;
-            for j in 0..6 {
-                row += self.compliance[i][j] * b[j];
-            }
-            acc += a[i] * row;
+        for i in 0..3 {
+            acc += a[i] * (c[i][0] * b[0] + c[i][1] * b[1] + c[i][2] * b[2]);
         }
-        acc
+        acc + a[3] * self.c_shear[0] * b[3]
+            + a[4] * self.c_shear[1] * b[4]
+            + a[5] * self.c_shear[2] * b[5]
     }
 }
 

@@ -108,3 +108,40 @@ fn zone_file_parses_and_rejects_bad_entries() {
         MaterialMap::from_json(r#"{"3": {"youngs": 1, "poisson": 0.6}}"#, "z.json").unwrap_err();
     assert!(err.to_string().contains("zone 3"), "{err}");
 }
+
+/// The compact products equal the full 6x6 ones, and D and C are block diagonal in every mode
+/// (normal block and shear diagonal), which the compact form relies on.
+#[test]
+fn compact_products_match_full_matrices() {
+    let a = [1.0, -2.0, 0.5, 0.3, -0.7, 1.1];
+    let b = [0.2, 0.4, -1.5, 2.0, 0.9, -0.3];
+    for mode in [
+        AnalysisMode::Solid3d,
+        AnalysisMode::PlaneStress { thickness: 3.0 },
+        AnalysisMode::PlaneStrain,
+        AnalysisMode::Axisymmetric,
+    ] {
+        let el = Elasticity::new(mat(), mode);
+        for i in 0..6 {
+            for j in 0..6 {
+                if (i < 3) != (j < 3) || (i >= 3 && i != j) {
+                    assert_eq!(el.stiffness[i][j], 0.0);
+                    assert_eq!(el.compliance[i][j], 0.0);
+                }
+            }
+        }
+        let full_stress: Vec<f64> = (0..6)
+            .map(|i| (0..6).map(|j| el.stiffness[i][j] * a[j]).sum())
+            .collect();
+        let full_energy: f64 = (0..6)
+            .map(|i| a[i] * (0..6).map(|j| el.compliance[i][j] * b[j]).sum::<f64>())
+            .sum();
+        let s = el.stress(&a);
+        for i in 0..6 {
+            assert!((s[i] - full_stress[i]).abs() <= 1e-12 * full_stress[i].abs().max(1.0));
+        }
+        assert!(
+            (el.energy_product(&a, &b) - full_energy).abs() <= 1e-15 * full_energy.abs().max(1.0)
+        );
+    }
+}

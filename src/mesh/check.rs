@@ -22,8 +22,6 @@ pub struct BadElement {
     pub file_cell: u32,
     /// Failure kind.
     pub kind: BadElementKind,
-    /// Smallest det J found, relative to the element size^d.
-    pub relative_det: f64,
 }
 
 /// Relative determinant below which an element counts as collapsed: det J / h^d < 1e-10
@@ -48,17 +46,11 @@ pub fn check_geometry(mesh: &Mesh) -> Vec<BadElement> {
                     mesh.gather_coords(nodes, &mut coords[..nn]);
                     let h = element_size(&coords[..kind.vertex_count()]);
                     let scale = h.powi(dim as i32).max(f64::MIN_POSITIVE);
-                    let mut dn_phys = [[0.0; 3]; MAX_NODES];
                     let mut worst = f64::INFINITY;
                     for rule in rules {
                         let table = kind.table(rule);
                         for k in 0..table.len() {
-                            let det = map_gradients(
-                                dim,
-                                &coords[..nn],
-                                table.dn_at(k),
-                                &mut dn_phys[..nn],
-                            );
+                            let det = jacobian_det(dim, &coords[..nn], table.dn_at(k));
                             let rel = det / scale;
                             if rel.is_nan() || rel < worst {
                                 worst = rel;
@@ -70,13 +62,11 @@ pub fn check_geometry(mesh: &Mesh) -> Vec<BadElement> {
                         Some(BadElement {
                             file_cell,
                             kind: BadElementKind::Degenerate,
-                            relative_det: worst,
                         })
                     } else if worst < 0.0 {
                         Some(BadElement {
                             file_cell,
                             kind: BadElementKind::Inverted,
-                            relative_det: worst,
                         })
                     } else {
                         None
@@ -87,6 +77,26 @@ pub fn check_geometry(mesh: &Mesh) -> Vec<BadElement> {
         .collect();
     bad.sort_by_key(|b| b.file_cell);
     bad
+}
+
+/// det J at one point from the nodal coordinates and reference gradients (2D: the x-y block).
+#[inline]
+pub(crate) fn jacobian_det(dim: usize, coords: &[[f64; 3]], dn_ref: &[[f64; 3]]) -> f64 {
+    let mut j = [[0.0; 3]; 3];
+    for (x, g) in coords.iter().zip(dn_ref) {
+        for a in 0..3 {
+            for b in 0..3 {
+                j[a][b] += g[a] * x[b];
+            }
+        }
+    }
+    if dim == 2 {
+        j[0][0] * j[1][1] - j[0][1] * j[1][0]
+    } else {
+        j[0][0] * (j[1][1] * j[2][2] - j[1][2] * j[2][1])
+            - j[0][1] * (j[1][0] * j[2][2] - j[1][2] * j[2][0])
+            + j[0][2] * (j[1][0] * j[2][1] - j[1][1] * j[2][0])
+    }
 }
 
 /// Largest distance between two corners: a size scale for relative geometry tolerances.

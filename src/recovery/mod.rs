@@ -10,8 +10,10 @@ mod materials;
 mod slots;
 mod spr;
 
-pub use fe_stress::{sample_stresses, ElementData, SampledStresses};
-pub use least_squares::{evaluate as evaluate_patch, NormalEquations, MAX_TERMS};
+pub use fe_stress::{
+    sample_stresses, ElementData, PointStrain, SampledStresses, DEGENERATE_RELATIVE_DET,
+};
+pub use least_squares::{evaluate as evaluate_patch, fit as fit_polynomial, Sample, MAX_TERMS};
 pub use materials::{ElementMaterials, MissingZoneMaterial};
 pub use slots::Slots;
 

@@ -15,7 +15,7 @@
 //!    elements' FE stresses at the node. The rule used is recorded per node.
 
 use super::fe_stress::{ElementData, SampledStresses};
-use super::least_squares::{evaluate, NormalEquations, MAX_TERMS};
+use super::least_squares::{evaluate, fit, Sample, MAX_TERMS};
 use super::materials::ElementMaterials;
 use super::slots::Slots;
 use super::NodeRule;
@@ -27,6 +27,9 @@ use rayon::prelude::*;
 /// Most candidate patches averaged for one node; more is never reached on sane meshes and the
 /// cut keeps the loop allocation-free (the order is deterministic, so results stay reproducible).
 const MAX_CANDIDATES: usize = 128;
+/// Samples of one patch kept on the stack (a tet10 vertex in an unstructured mesh has about
+/// 20-60 elements with 4 samples each); larger patches spill to the heap.
+const STACK_SAMPLES: usize = 384;
 /// Rings of neighbours added at most when enlarging a patch (fallback b).
 const MAX_RINGS: usize = 3;
 
@@ -75,19 +78,6 @@ impl Context<'_> {
         nodes[..kind.vertex_count()].contains(&node)
     }
 
-    /// Adds the sampling points of element `e` to a fit centred at `center` with scale `h`.
-    fn add_samples(&self, e: usize, center: [f64; 3], h: f64, eq: &mut NormalEquations) {
-        let mesh = self.mesh();
-        let b = mesh.block_of(e);
-        let block = &mesh.blocks[b];
-        for s in self.samples.range(block.kind, b, e - block.first_element) {
-            eq.add(
-                scaled(self.samples.position[s], center, h),
-                &self.samples.stress[s],
-            );
-        }
-    }
-
     /// Fits `basis` to the samples of `elements` around `center`; the scale is the largest
     /// distance from the centre to a corner of the elements.
     fn fit(
@@ -110,11 +100,36 @@ impl Context<'_> {
         if h.is_nan() || h <= 0.0 {
             return None;
         }
-        let mut eq = NormalEquations::new(basis);
+        // Samples gathered on the stack; a rare very large patch spills to the heap.
+        let mut stack = [([0.0; 3], [0.0; 6]); STACK_SAMPLES];
+        let mut heap: Vec<Sample> = Vec::new();
+        let mut count = 0;
         for &e in elements {
-            self.add_samples(e as usize, center, h, &mut eq);
+            let e = e as usize;
+            let b = mesh.block_of(e);
+            let block = &mesh.blocks[b];
+            for s in self.samples.range(block.kind, b, e - block.first_element) {
+                let item = (
+                    scaled(self.samples.position[s], center, h),
+                    self.samples.stress[s],
+                );
+                if count < STACK_SAMPLES {
+                    stack[count] = item;
+                } else {
+                    if heap.is_empty() {
+                        heap.extend_from_slice(&stack);
+                    }
+                    heap.push(item);
+                }
+                count += 1;
+            }
         }
-        eq.solve(coeff).then_some(h)
+        let samples = if count <= STACK_SAMPLES {
+            &stack[..count]
+        } else {
+            &heap[..]
+        };
+        fit(basis, samples, coeff).then_some(h)
     }
 }
 
@@ -143,16 +158,21 @@ fn patch_basis(mesh: &Mesh, elements: impl Iterator<Item = u32>) -> Option<Patch
 fn fit_patches(ctx: &Context) -> Patches {
     let mesh = ctx.mesh();
     let slots = ctx.slots;
+    // A slot is a patch vertex when it is a corner of an element of its zone.
+    let mut is_vertex = vec![false; slots.len()];
+    for block in &mesh.blocks {
+        let nv = block.kind.vertex_count();
+        for i in 0..block.len() {
+            let zone = mesh.zone[block.first_element + i];
+            for &v in &block.cell(i)[..nv] {
+                is_vertex[slots.slot(v, zone)] = true;
+            }
+        }
+    }
     let mut of_slot = vec![u32::MAX; slots.len()];
     let mut vertex_slots = Vec::new();
     for (s, entry) in of_slot.iter_mut().enumerate() {
-        let (node, zone) = slots.node_zone(s);
-        let is_vertex = ctx
-            .adjacency
-            .of(node as usize)
-            .iter()
-            .any(|&e| mesh.zone[e as usize] == zone && ctx.is_vertex_of(node, e as usize));
-        if is_vertex {
+        if is_vertex[s] {
             *entry = vertex_slots.len() as u32;
             vertex_slots.push(s as u32);
         }
@@ -359,9 +379,13 @@ pub(super) fn node_average(ctx: &Context, node: u32, zone: i64) -> SymTensor {
             continue;
         };
         let data = ElementData::gather(ctx.model, kind, nodes);
-        if let Some((strain, _, _)) =
-            data.strain_at(kind.table(TableRule::Nodes), local, dim, ctx.materials.mode)
-        {
+        if let Ok((strain, _, _)) = data.strain_at(
+            kind.table(TableRule::Nodes),
+            local,
+            dim,
+            ctx.materials.mode,
+            false,
+        ) {
             let s = ctx.materials.of(e).stress(&strain);
             for c in 0..6 {
                 sum[c] += s[c];
