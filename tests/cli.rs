@@ -331,3 +331,70 @@ fn output_never_overwrites_the_input() {
     assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
     assert_eq!(std::fs::read(&file).unwrap(), before, "input modified");
 }
+
+fn data(name: &str) -> String {
+    format!("{}/tests/data/{name}", env!("CARGO_MANIFEST_DIR"))
+}
+
+/// Files written by an independent mesh I/O library (meshio; script in tests/data) carry a
+/// linear displacement field, so the FE stress is constant and the estimate must vanish (the
+/// patch test, common practice), whatever the encoding.
+#[test]
+fn external_files_with_a_linear_field_estimate_zero_error() {
+    let cases: [(&str, &[&str]); 4] = [
+        ("meshio_tet10_ascii.vtu", &[]),
+        ("meshio_tet10_zlib_uint64.vtu", &[]),
+        ("meshio_quad8_tri6_binary.vtu", &["--plane-stress"]),
+        ("meshio_quad8_tri6_zlib.vtu", &["--plane-strain"]),
+    ];
+    for (file, extra) in cases {
+        let path = data(file);
+        let mut args = vec![
+            "estimate",
+            path.as_str(),
+            "--youngs",
+            "70000",
+            "--poisson",
+            "0.33",
+            "--json",
+        ];
+        args.extend_from_slice(extra);
+        let o = hone(&args);
+        assert_eq!(o.status.code(), Some(0), "{file}: {}", stderr(&o));
+        let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+        let eta = v["relative_error"].as_f64().unwrap();
+        // meshio's ascii writes 12 significant digits: round-off in u of 1e-12 relative gives
+        // stress noise of about 1e-9 relative on these unit-size cells.
+        assert!(eta < 1e-6, "{file}: relative error {eta}");
+        assert!(v["energy_norm"].as_f64().unwrap() > 0.0);
+    }
+}
+
+/// A zlib-compressed tet10 file from meshio (headers encoded separately, Int64 types) with a
+/// smooth non-polynomial field: the summary is sensible (all 96 cells, 3D, a small positive
+/// relative error, the error concentrated in a minority of cells) and the capitalised
+/// 'Displacement' array is found.
+#[test]
+fn external_file_with_a_smooth_field_gives_a_sensible_summary() {
+    let path = data("meshio_bracket_tet10_zlib.vtu");
+    let o = hone(&[
+        "estimate",
+        &path,
+        "--youngs",
+        "206000",
+        "--poisson",
+        "0.3",
+        "--json",
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v["elements"], 96);
+    assert_eq!(v["dimension"], 3);
+    let eta = v["relative_error"].as_f64().unwrap();
+    assert!(eta > 1e-4 && eta < 0.2, "relative error {eta}");
+    let half = v["elements_for_half_error"].as_u64().unwrap();
+    assert!(half >= 1 && half < 48, "half of the error in {half} cells");
+    let text = hone(&["estimate", &path, "--youngs", "206000", "--poisson", "0.3"]);
+    let text = String::from_utf8(text.stdout).unwrap();
+    assert!(text.contains("tet10 96"), "{text}");
+}

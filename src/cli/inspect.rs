@@ -113,3 +113,12 @@ pub(super) fn run(args: &InspectArgs, json: bool) -> Result<Outcome> {
     )?;
     Ok(Outcome::Ok)
 }
+
+/// "1 component", "3 components".
+fn components(n: usize) -> String {
+    if n == 1 {
+        "1 component".into()
+    } else {
+        format!("{n} components")
+    }
+}

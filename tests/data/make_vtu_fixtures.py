@@ -90,6 +90,52 @@ def tet10():
     return np.array(points), [("tetra10", np.array(tets))]
 
 
+def tet10_block(n, size):
+    """A box of n[0] x n[1] x n[2] cubes, each split into six 10-node tetrahedra (Kuhn)."""
+    add_mid_nodes.cache = {}
+    size = np.asarray(size, dtype=float)
+    nx, ny, nz = n
+
+    def vid(i, j, k):
+        return i + (nx + 1) * (j + (ny + 1) * k)
+
+    points = [[i * size[0] / nx, j * size[1] / ny, k * size[2] / nz]
+              for k in range(nz + 1) for j in range(ny + 1) for i in range(nx + 1)]
+    tets = []
+    for k in range(nz):
+        for j in range(ny):
+            for i in range(nx):
+                for order in ([0, 1, 2], [0, 2, 1], [1, 0, 2], [1, 2, 0], [2, 0, 1], [2, 1, 0]):
+                    at = [i, j, k]
+                    path = [vid(*at)]
+                    for axis in order:
+                        at[axis] += 1
+                        path.append(vid(*at))
+                    a, b, c, d = path
+                    pa, pb, pc, pd = (np.array(points[v]) for v in (a, b, c, d))
+                    if np.dot(np.cross(pb - pa, pc - pa), pd - pa) < 0:
+                        b, c = c, b
+                    tet = [a, b, c, d]
+                    edges = [(0, 1), (1, 2), (2, 0), (0, 3), (1, 3), (2, 3)]
+                    tets.append(tet + add_mid_nodes(points, tet, edges))
+    return np.array(points), [("tetra10", np.array(tets))]
+
+
+def smooth_bracket():
+    """meshio_bracket_tet10_zlib.vtu: a 4 x 2 x 2 block of tet10 cells (96 cells) with a smooth,
+    non-polynomial point array 'Displacement' (capitalised on purpose), zlib-compressed, so
+    that the estimate on a file from another program has a non-zero error to report."""
+    points, cells = tet10_block((4, 2, 2), (4.0, 2.0, 2.0))
+    x, y, z = points[:, 0], points[:, 1], points[:, 2]
+    displacement = np.column_stack([
+        1e-3 * (np.sin(0.8 * x) + 0.1 * y * y),
+        1e-3 * np.cos(0.5 * x + 0.3 * z),
+        2e-4 * x * y,
+    ]).astype(np.float64)
+    mesh = meshio.Mesh(points, cells, point_data={"Displacement": displacement})
+    meshio.vtu.write("meshio_bracket_tet10_zlib.vtu", mesh, binary=True, compression="zlib")
+
+
 def mesh_with_data(points, cells):
     x, y, z = points[:, 0], points[:, 1], points[:, 2]
     displacement = np.column_stack([0.001 * x, -0.002 * y, 0.0005 * z]).astype(np.float64)
@@ -119,6 +165,7 @@ def main():
         for suffix, kwargs in variants:
             mesh = mesh_with_data(points, cells)
             meshio.vtu.write(f"meshio_{name}_{suffix}.vtu", mesh, **kwargs)
+    smooth_bracket()
 
 
 def b64_header_alone(fmt, values):
