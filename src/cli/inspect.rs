@@ -81,9 +81,9 @@ pub(super) fn run(args: &InspectArgs, json: bool) -> Result<Outcome> {
     for a in &raw.point_data {
         writeln!(
             w,
-            "    {:<30} {} components, {}",
+            "    {:<30} {}, {}",
             a.name,
-            a.components,
+            components(a.components),
             a.scalar_type.vtk_name()
         )?;
     }
@@ -91,9 +91,9 @@ pub(super) fn run(args: &InspectArgs, json: bool) -> Result<Outcome> {
     for a in &raw.cell_data {
         writeln!(
             w,
-            "    {:<30} {} components, {}",
+            "    {:<30} {}, {}",
             a.name,
-            a.components,
+            components(a.components),
             a.scalar_type.vtk_name()
         )?;
     }

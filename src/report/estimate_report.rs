@@ -89,7 +89,7 @@ impl EstimateReport {
             .join(", ");
         writeln!(
             w,
-            "  recovery               {} (nodes from: {rules})",
+            "  recovery               {}; nodes from: {rules}",
             self.recovery
         )?;
         writeln!(w)?;
