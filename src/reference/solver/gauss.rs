@@ -12,9 +12,9 @@
 //! `s = v (1 - u)` with Jacobian `1 - u`; tetrahedron `r = u`, `s = v (1 - u)`,
 //! `t = w (1 - u)(1 - v)` with Jacobian `(1 - u)^2 (1 - v)`, `u, v, w` Gauss-Legendre points on
 //! [0, 1] (Duffy 1982, SIAM J. Numer. Anal. 19:1260-1262; Stroud 1971, "Approximate calculation
-//! of multiple integrals" (from memory)). With `n` points per direction they are exact to degree
-//! `2n - 2` (triangle) and `2n - 3` (tetrahedron). Wedges take the collapsed triangle rule times
-//! Gauss-Legendre in `t`.
+//! of multiple integrals" (from memory)). With `n` points per direction (`n + 1` along `u` on
+//! the tetrahedron, where the Jacobian is quadratic) both are exact to total degree `2n - 2`.
+//! Wedges take the collapsed triangle rule times Gauss-Legendre in `t`.
 
 use crate::element::ElementKind;
 
@@ -67,8 +67,9 @@ pub fn gauss_legendre(n: usize) -> (Vec<f64>, Vec<f64>) {
 
 /// A product rule with `n` points per direction on the reference element of `kind` (natural
 /// coordinates, weights summing to `kind.reference_measure()`): Gauss-Legendre on quadrilaterals
-/// and hexahedra, collapsed Gauss-Legendre on triangles and tetrahedra, collapsed triangle x
-/// Gauss-Legendre on wedges.
+/// and hexahedra (exact to degree `2n - 1` in each coordinate), collapsed Gauss-Legendre on
+/// triangles and tetrahedra (total degree `2n - 2`), collapsed triangle x Gauss-Legendre on
+/// wedges. `n = 0` is treated as 1.
 pub fn reference_rule(kind: ElementKind, n: usize) -> Vec<([f64; 3], f64)> {
     let (x, w) = gauss_legendre(n);
     // The same points mapped to [0, 1].
@@ -122,7 +123,14 @@ pub fn reference_rule(kind: ElementKind, n: usize) -> Vec<([f64; 3], f64)> {
             }
         }
         Tet4 | Tet10 => {
-            for &(u, wu) in &unit {
+            // One more point along u, whose Jacobian factor (1 - u)^2 is quadratic.
+            let (xu, wu) = gauss_legendre(n.max(1) + 1);
+            let first: Vec<(f64, f64)> = xu
+                .iter()
+                .zip(&wu)
+                .map(|(&x, &w)| (0.5 * (x + 1.0), 0.5 * w))
+                .collect();
+            for &(u, wu) in &first {
                 for &(v, wv) in &unit {
                     for &(s, ws) in &unit {
                         let r = u;
