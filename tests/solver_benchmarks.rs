@@ -21,6 +21,8 @@
 //!        |  +----------+  u_z = 0
 //!        +-----------------> r
 //!    ```
+// Numeric checks index several arrays in step; index loops say that more plainly.
+#![allow(clippy::needless_range_loop)]
 
 #[path = "solver_util.rs"]
 mod util;

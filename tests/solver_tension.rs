@@ -13,6 +13,8 @@
 //! e = -nu sigma / E; plane strain e_x = (1 - nu^2) sigma / E, e_y = -nu (1 + nu) sigma / E;
 //! axisymmetric u_z = sigma z / E, u_r = -nu sigma r / E. Strain energy U = sigma e_x V / 2 with
 //! V including the thickness or 2 pi r, and f^T u = 2 U (Clapeyron, homogeneous supports).
+// Numeric checks index several arrays in step; index loops say that more plainly.
+#![allow(clippy::needless_range_loop)]
 
 #[path = "solver_util.rs"]
 mod util;

@@ -1,5 +1,7 @@
 //! Helpers shared by the reference-solver tests (included with `#[path]`; as a test target of
 //! its own it holds no tests).
+// Numeric checks index several arrays in step; index loops say that more plainly.
+#![allow(clippy::needless_range_loop)]
 #![allow(dead_code)]
 
 use hone::element::ElementKind;
@@ -7,6 +9,9 @@ use hone::material::{AnalysisMode, Material, MaterialMap};
 use hone::mesh::generate::{map_points, structured};
 use hone::mesh::Mesh;
 use hone::reference::solver::{boundary_facets, Constraint};
+
+/// A displacement field given in code.
+pub type Field = Box<dyn Fn([f64; 3]) -> [f64; 3]>;
 
 /// The 2D kinds.
 pub const KINDS_2D: [ElementKind; 5] = [
