@@ -111,10 +111,29 @@ impl ElementData {
     /// Gathers element `nodes` of `model`.
     #[inline]
     pub fn gather(model: &Model, kind: ElementKind, nodes: &[u32]) -> Self {
+        Self::from_nodes(
+            kind,
+            model.mesh.dimension,
+            nodes,
+            &model.mesh.points,
+            &model.displacement,
+        )
+    }
+
+    /// Gathers element `nodes` from point and displacement arrays, for a mesh of spatial
+    /// dimension `dim`.
+    #[inline]
+    pub fn from_nodes(
+        kind: ElementKind,
+        dim: usize,
+        nodes: &[u32],
+        points: &[[f64; 3]],
+        displacement: &[[f64; 3]],
+    ) -> Self {
         let mut rows = [[0.0; 8]; MAX_NODES];
         for (row, &n) in rows.iter_mut().zip(nodes) {
-            let p = model.mesh.points[n as usize];
-            let u = model.displacement[n as usize];
+            let p = points[n as usize];
+            let u = displacement[n as usize];
             *row = [p[0], p[1], p[2], 0.0, u[0], u[1], u[2], 0.0];
         }
         let nv = kind.vertex_count();
@@ -127,8 +146,8 @@ impl ElementData {
                 h2 = h2.max(d2);
             }
         }
-        let det_scale = h2.powf(model.mesh.dimension as f64 / 2.0);
-        let affine = if model.mesh.dimension == kind.dim() {
+        let det_scale = h2.powf(dim as f64 / 2.0);
+        let affine = if dim == kind.dim() {
             affine_simplex(kind, &rows, h2)
         } else {
             None

@@ -13,7 +13,7 @@
 
 use super::gauss::reference_rule;
 use super::SolveError;
-use crate::element::{ElementKind, ShapeTable, MAX_NODES};
+use crate::element::{ElementKind, ShapeTable};
 use crate::material::{AnalysisMode, MaterialMap};
 use crate::mesh::Mesh;
 use crate::recovery::{ElementData, ElementMaterials};
@@ -95,20 +95,18 @@ pub fn try_exact_errors(
             .enumerate()
             .filter_map(|(i, (err, ex))| {
                 let e = block.first_element + i;
-                let mut data = ElementData {
-                    kind: block.kind,
-                    coords: [[0.0; 3]; MAX_NODES],
-                    disp: [[0.0; 3]; MAX_NODES],
-                };
-                for (a, &node) in block.cell(i).iter().enumerate() {
-                    data.coords[a] = mesh.points[node as usize];
-                    data.disp[a] = displacement[node as usize];
-                }
+                let data = ElementData::from_nodes(
+                    block.kind,
+                    mesh.dimension,
+                    block.cell(i),
+                    &mesh.points,
+                    displacement,
+                );
                 let elasticity = element_materials.of(e);
                 let dim = block.kind.dim();
                 let (mut acc_err, mut acc_ex) = (0.0, 0.0);
                 for k in 0..table.len() {
-                    let Some((strain, x, det)) = data.strain_at(&table, k, dim, mode) else {
+                    let Ok((strain, x, det)) = data.strain_at(&table, k, dim, mode, true) else {
                         return Some(mesh.file_cell[e]);
                     };
                     let fe = elasticity.stress(&strain);

@@ -9,7 +9,6 @@ use super::pattern::NodeGraph;
 use super::rigid::check_supports;
 use super::stiffness::element_energy;
 use super::{BoundaryConditions, LinearSolver, Solution, SolveError, SolveOptions};
-use crate::element::MAX_NODES;
 use crate::material::{AnalysisMode, MaterialMap};
 use crate::mesh::Mesh;
 use crate::recovery::{ElementData, ElementMaterials};
@@ -190,15 +189,8 @@ fn strain_energy(
         .into_par_iter()
         .map(|e| {
             let (kind, nodes) = mesh.element(e);
-            let mut data = ElementData {
-                kind,
-                coords: [[0.0; 3]; MAX_NODES],
-                disp: [[0.0; 3]; MAX_NODES],
-            };
-            for (a, &n) in nodes.iter().enumerate() {
-                data.coords[a] = mesh.points[n as usize];
-                data.disp[a] = displacement[n as usize];
-            }
+            let data =
+                ElementData::from_nodes(kind, mesh.dimension, nodes, &mesh.points, displacement);
             element_energy(&data, materials.of(e), mode)
         })
         .collect();
