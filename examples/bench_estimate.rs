@@ -169,7 +169,7 @@ fn estimate(path: &Path, kind: ElementKind) {
     lap("SPR recovery");
     let est = hone::estimate::estimate(&model, &materials, &recovered).expect("estimate");
     lap("error indicators");
-    let computed = hone::cli::Computed {
+    let computed = hone::estimate::Computed {
         recovered,
         estimate: est,
     };

@@ -4,98 +4,28 @@ use super::args::{EstimateArgs, RecoveryArg};
 use super::model_options::{analysis_mode, describe, materials, model_options};
 use super::progress::Stages;
 use super::Outcome;
-use crate::estimate::{estimate, Estimate};
+use crate::estimate::{estimate_model, Computed};
 use crate::io::{
     build_model, read_results, write_model_vtu, Encoding, Field, FieldValues, WriteOptions,
 };
 use crate::material::{von_mises, AnalysisMode, MaterialMap};
-use crate::mesh::{BadElement, BadElementKind, BoundaryFacets, Model, NodeElements};
-use crate::recovery::{recover, sample_stresses, ElementMaterials, Recovered, RecoveryMethod};
+use crate::mesh::Model;
+use crate::recovery::RecoveryMethod;
 use crate::report::{EstimateReport, TopElement};
 use anyhow::{anyhow, Context, Result};
 use std::io::Write;
 
-/// The result of the computing stages of an estimate.
-pub struct Computed {
-    /// Recovered stresses.
-    pub recovered: Recovered,
-    /// Error indicators.
-    pub estimate: Estimate,
-}
-
-/// Lists at most ten cell ids and the total count.
-fn cell_list(cells: &[u32]) -> String {
-    let shown: Vec<String> = cells.iter().take(10).map(|c| c.to_string()).collect();
-    if cells.len() > 10 {
-        format!("{} and {} more", shown.join(", "), cells.len() - 10)
-    } else {
-        shown.join(", ")
-    }
-}
-
-/// The error for inverted or collapsed elements, listing their file ids by kind of failure.
-fn bad_elements(file: &str, bad: &[BadElement]) -> anyhow::Error {
-    let ids = |kind: BadElementKind| -> Vec<u32> {
-        bad.iter()
-            .filter(|b| b.kind == kind)
-            .map(|b| b.file_cell)
-            .collect()
-    };
-    let inverted = ids(BadElementKind::Inverted);
-    let degenerate = ids(BadElementKind::Degenerate);
-    let mut parts = Vec::new();
-    if !inverted.is_empty() {
-        parts.push(format!(
-            "{} inverted cells (negative Jacobian: mirrored node order or folded element): {}",
-            inverted.len(),
-            cell_list(&inverted)
-        ));
-    }
-    if !degenerate.is_empty() {
-        parts.push(format!(
-            "{} degenerate cells (zero or non-finite Jacobian: collapsed element): {}",
-            degenerate.len(),
-            cell_list(&degenerate)
-        ));
-    }
-    anyhow!(
-        "{file}: {}; expected every cell to have a positive Jacobian in VTK node order",
-        parts.join("; ")
-    )
-}
-
-/// Runs stresses (with the geometry check), recovery and indicators on a model. `file` names the input in
-/// messages; `stages` (optional) shows progress.
-pub fn compute(
+/// Runs the estimate stage with progress display; errors name the file.
+fn compute(
     model: &Model,
     map: &MaterialMap,
     mode: AnalysisMode,
     method: RecoveryMethod,
     file: &str,
-    stages: Option<&Stages>,
+    stages: &Stages,
 ) -> Result<Computed> {
-    let stage = |m: &'static str| {
-        if let Some(s) = stages {
-            s.stage(m)
-        }
-    };
-    let materials =
-        ElementMaterials::new(&model.mesh, map, mode).map_err(|e| anyhow!("{file}: {e}"))?;
-    stage("FE stresses at sampling points");
-    let samples = sample_stresses(model, &materials).map_err(|bad| bad_elements(file, &bad))?;
-    stage("adjacency and boundary");
-    let adjacency = NodeElements::new(&model.mesh);
-    let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
-    stage("stress recovery");
-    let recovered = recover(model, &materials, &samples, &adjacency, &boundary, method);
-    drop(samples);
-    stage("error indicators");
-    let estimate =
-        estimate(model, &materials, &recovered).map_err(|bad| bad_elements(file, &bad))?;
-    Ok(Computed {
-        recovered,
-        estimate,
-    })
+    estimate_model(model, map, mode, method, &|m| stages.stage(m))
+        .map_err(|e| anyhow!("{file}: {e}"))
 }
 
 /// Mean length of the element's vertex-to-vertex edges (the glossary's `size_now`).
@@ -131,7 +61,7 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
         RecoveryArg::Spr => RecoveryMethod::Spr,
         RecoveryArg::Average => RecoveryMethod::Average,
     };
-    let computed = compute(&model, &map, mode, method, &file, Some(&stages))?;
+    let computed = compute(&model, &map, mode, method, &file, &stages)?;
     let est = &computed.estimate;
     let mut warnings = Vec::new();
     for (vtk, count) in &notes.skipped {

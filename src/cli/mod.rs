@@ -4,7 +4,7 @@
 
 pub mod args;
 mod estimate;
-pub use estimate::{compute, size_now, write_annotated, Computed};
+pub use estimate::{size_now, write_annotated};
 mod inspect;
 mod model_options;
 mod progress;

@@ -12,6 +12,10 @@
 //! thickness (plane stress) or 2 pi r (axisymmetric). Global sums run over the per-element values
 //! in element order, so results are bit-identical for any number of threads.
 
+mod pipeline;
+
+pub use pipeline::{estimate_model, Computed, EstimateError};
+
 use crate::element::TableRule;
 use crate::mesh::{BadElement, Model};
 use crate::recovery::{ElementData, ElementMaterials, Recovered};

@@ -1,8 +1,8 @@
 //! Helpers shared by the whole-run tests: models from generated meshes and analytic fields.
 #![allow(dead_code)]
 
-use hone::cli::compute;
 use hone::element::ElementKind;
+use hone::estimate::{estimate_model, Computed};
 use hone::material::{AnalysisMode, Material, MaterialMap};
 use hone::mesh::generate::{map_points, structured};
 use hone::mesh::{Mesh, Model};
@@ -56,8 +56,8 @@ pub fn model_with(mesh: Mesh, u: impl Fn([f64; 3]) -> [f64; 3]) -> Model {
 }
 
 /// Runs check, stresses, recovery and the estimate.
-pub fn run(model: &Model, mode: AnalysisMode, method: RecoveryMethod) -> hone::cli::Computed {
-    compute(model, &steel(), mode, method, "generated", None).expect("pipeline runs")
+pub fn run(model: &Model, mode: AnalysisMode, method: RecoveryMethod) -> Computed {
+    estimate_model(model, &steel(), mode, method, &|_| {}).expect("pipeline runs")
 }
 
 /// Least-squares slope of log y against log x.
