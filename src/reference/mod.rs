@@ -3,4 +3,5 @@
 //! user-facing solver; problems are defined in code.
 
 pub mod meshes;
+pub mod problems;
 pub mod solver;
