@@ -1,11 +1,12 @@
 //! A smooth manufactured 3D field on the unit box, loaded by the body force it implies.
 //!
-//! u = (a x^2 y, a y^2 z, a z^2 x). For an isotropic material Navier's equations
+//! u = (a x^3 y, a y^3 z, a z^3 x): cubic in one variable, so no element space of hone
+//! (at most quadratic per coordinate) contains it. For an isotropic material Navier's equations
 //! mu lap(u) + (lambda + mu) grad(div u) + f = 0 (e.g. Timoshenko & Goodier 1970, sec. 85,
-//! common practice) give the body force
-//! f = -( (lambda + mu)(2a y + 2a z) + 2 mu a y,
-//!        (lambda + mu)(2a x + 2a z) + 2 mu a z,
-//!        (lambda + mu)(2a y + 2a x) + 2 mu a x ).
+//! common practice) give, with div u = 3a (x^2 y + y^2 z + z^2 x), the body force
+//! f = -( (lambda + mu)(6a x y + 3a z^2) + 6 mu a x y,
+//!        (lambda + mu)(3a x^2 + 6a y z) + 6 mu a y z,
+//!        (lambda + mu)(3a y^2 + 6a z x) + 6 mu a z x ).
 //! Supports: the exact displacement on x = 0; the exact traction on the other five faces.
 
 use super::{exact_traction, ExactStress, Problem, ON_BOUNDARY};
@@ -32,31 +33,35 @@ pub fn manufactured_box(kind: ElementKind, n: usize) -> Problem {
     let (lambda, mu) = lame_constants();
     let exact_displacement = Arc::new(|p: [f64; 3]| {
         [
-            AMP * p[0] * p[0] * p[1],
-            AMP * p[1] * p[1] * p[2],
-            AMP * p[2] * p[2] * p[0],
+            AMP * p[0].powi(3) * p[1],
+            AMP * p[1].powi(3) * p[2],
+            AMP * p[2].powi(3) * p[0],
         ]
     });
     let exact_stress: ExactStress = Arc::new(move |p: [f64; 3]| {
         let (x, y, z) = (p[0], p[1], p[2]);
-        let e = [2.0 * AMP * x * y, 2.0 * AMP * y * z, 2.0 * AMP * z * x];
+        let e = [
+            3.0 * AMP * x * x * y,
+            3.0 * AMP * y * y * z,
+            3.0 * AMP * z * z * x,
+        ];
         let tr = e[0] + e[1] + e[2];
         [
             lambda * tr + 2.0 * mu * e[0],
             lambda * tr + 2.0 * mu * e[1],
             lambda * tr + 2.0 * mu * e[2],
-            mu * AMP * x * x,
-            mu * AMP * y * y,
-            mu * AMP * z * z,
+            mu * AMP * x.powi(3),
+            mu * AMP * y.powi(3),
+            mu * AMP * z.powi(3),
         ]
     });
     let body_force = Arc::new(move |p: [f64; 3]| {
         let (x, y, z) = (p[0], p[1], p[2]);
         let lm = lambda + mu;
         [
-            -(lm * (2.0 * AMP * y + 2.0 * AMP * z) + 2.0 * mu * AMP * y),
-            -(lm * (2.0 * AMP * x + 2.0 * AMP * z) + 2.0 * mu * AMP * z),
-            -(lm * (2.0 * AMP * y + 2.0 * AMP * x) + 2.0 * mu * AMP * x),
+            -(lm * (6.0 * AMP * x * y + 3.0 * AMP * z * z) + 6.0 * mu * AMP * x * y),
+            -(lm * (3.0 * AMP * x * x + 6.0 * AMP * y * z) + 6.0 * mu * AMP * y * z),
+            -(lm * (3.0 * AMP * y * y + 6.0 * AMP * z * x) + 6.0 * mu * AMP * z * x),
         ]
     });
     let tol = ON_BOUNDARY;

@@ -133,3 +133,74 @@ fn exact_fields_are_in_equilibrium() {
         }
     }
 }
+
+/// Every exact stress is Hooke's law applied to the strain of its exact displacement
+/// (central differences, step 1e-6 of the size; O(h^2) truncation, so 1e-6 of the stress
+/// scale). Axisymmetric strain includes the hoop term u_r / r.
+#[test]
+fn exact_stress_is_the_stress_of_the_exact_displacement() {
+    use crate::material::{Elasticity, MaterialMap};
+    let problems = [
+        (cantilever(ElementKind::Quad4, 1), [20.0, 3.0, 0.0], 48.0),
+        (kirsch(ElementKind::Quad4, 1), [2.0, 1.5, 0.0], 5.0),
+        (l_shape(ElementKind::Quad4, 1), [-0.4, 0.6, 0.0], 1.0),
+        (
+            lame_plane_strain(ElementKind::Quad4, 1),
+            [1.2, 0.7, 0.0],
+            2.0,
+        ),
+        (
+            lame_axisymmetric(ElementKind::Quad4, 1),
+            [1.3, 0.2, 0.0],
+            2.0,
+        ),
+        (lame_solid(ElementKind::Hex8, 1), [1.2, 0.7, 0.3], 2.0),
+        (manufactured_box(ElementKind::Hex8, 1), [0.3, 0.7, 0.6], 1.0),
+    ];
+    for (problem, x, size) in problems {
+        let MaterialMap::Single(material) = problem.materials else {
+            panic!("single material")
+        };
+        let el = Elasticity::new(material, problem.mode);
+        let h = 1e-6 * size;
+        let g = |i: usize, j: usize| {
+            let (mut a, mut b) = (x, x);
+            a[j] += h;
+            b[j] -= h;
+            ((problem.exact_displacement)(a)[i] - (problem.exact_displacement)(b)[i]) / (2.0 * h)
+        };
+        let u = (problem.exact_displacement)(x);
+        let strain = match problem.mode {
+            AnalysisMode::Solid3d => [
+                g(0, 0),
+                g(1, 1),
+                g(2, 2),
+                g(0, 1) + g(1, 0),
+                g(1, 2) + g(2, 1),
+                g(0, 2) + g(2, 0),
+            ],
+            AnalysisMode::Axisymmetric => {
+                [g(0, 0), g(1, 1), u[0] / x[0], g(0, 1) + g(1, 0), 0.0, 0.0]
+            }
+            _ => [g(0, 0), g(1, 1), 0.0, g(0, 1) + g(1, 0), 0.0, 0.0],
+        };
+        let from_u = el.stress(&strain);
+        let exact = (problem.exact_stress)(x);
+        let scale = exact.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        // Plane stress and plane strain: sigma_zz is not part of D's plane-stress rows.
+        let comps: &[usize] = match problem.mode {
+            AnalysisMode::PlaneStress { .. } => &[0, 1, 3],
+            AnalysisMode::PlaneStrain => &[0, 1, 2, 3],
+            _ => &[0, 1, 2, 3, 4, 5],
+        };
+        for &c in comps {
+            assert!(
+                (from_u[c] - exact[c]).abs() <= 1e-6 * scale,
+                "{}: component {c}: {} vs {}",
+                problem.name,
+                from_u[c],
+                exact[c]
+            );
+        }
+    }
+}
