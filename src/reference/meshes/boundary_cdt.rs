@@ -89,8 +89,9 @@ impl<'a> Workspace<'a> {
             let area = signed_area(&polygon);
             let domain_on_left = (area > 0.0) == (lp.boundary == LoopId::Outer);
             for (i, &(from, pid, t0)) in starts.iter().enumerate() {
-                let (to, next_pid, next_t) = starts[(i + 1) % starts.len()];
-                let t1 = if next_pid == pid { next_t } else { 1.0 };
+                // The next entry starts a new segment (parameter 0) or continues this one.
+                let (to, _, next_t) = starts[(i + 1) % starts.len()];
+                let t1 = if next_t == 0.0 { 1.0 } else { next_t };
                 pending.push((from, to, pid, t0, t1));
                 directed.push(DirectedBoundaryEdge {
                     from,

@@ -272,15 +272,16 @@ fn checked_curve(
             let theta0 = (from[1] - center[1]).atan2(from[0] - center[0]);
             let theta1 = (to[1] - center[1]).atan2(to[0] - center[0]);
             let full = distance(from, to) <= CLOSURE_TOLERANCE * r0;
-            let sweep = if full {
+            // Counter-clockwise sweep in (0, 2 pi]; clockwise the complement, negative.
+            let ccw_sweep = if full {
                 TAU
             } else {
                 (theta1 - theta0).rem_euclid(TAU)
             };
-            let sweep = if *counter_clockwise {
-                sweep
-            } else {
-                sweep - TAU
+            let sweep = match (*counter_clockwise, full) {
+                (true, _) => ccw_sweep,
+                (false, true) => -TAU,
+                (false, false) => ccw_sweep - TAU,
             };
             Ok(Curve::Arc {
                 center: *center,
