@@ -261,7 +261,10 @@ impl<'a> Workspace<'a> {
     /// Returns the new vertex. Faces change away from the new vertex too (the constraint's
     /// removal re-legalises its neighbourhood), so the caller reclassifies afterwards.
     pub(crate) fn split_boundary_edge(&mut self, key: (usize, usize)) -> Result<usize, MeshError> {
-        let source = self.edges[&key];
+        let Some(&source) = self.edges.get(&key) else {
+            let p = self.position(key.0);
+            return Err(MeshError::BoundaryRefinement { x: p[0], y: p[1] });
+        };
         let t_mid = 0.5 * (source.t_lo + source.t_hi);
         let m = self.pieces[source.piece].curve.point(t_mid);
         let failure = MeshError::BoundaryRefinement { x: m[0], y: m[1] };

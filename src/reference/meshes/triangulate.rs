@@ -43,7 +43,7 @@ const MAX_MIN_ANGLE: f64 = 34.0;
 /// the constrained Delaunay triangulation of those points with the boundary edges as
 /// constraints; the inside is found by parity of boundary crossings; the refinement loop
 /// (`refine.rs`) inserts circumcentres of faces too large for `h` (longest edge above
-/// `1.3 h(centroid)`) or with an angle below `min_angle_deg`, splitting encroached boundary edges
+/// `1.4 h(centroid)`) or with an angle below `min_angle_deg`, splitting encroached boundary edges
 /// at their middle, on the arc for arcs. The output has dimension 2, z = 0, zone 0,
 /// `file_cell = 0..n`, counter-clockwise triangles in VTK order; Tri6 mid nodes are edge
 /// midpoints except on arcs, where they are the arc's point at the middle angle. Only points
@@ -98,19 +98,18 @@ fn output(ws: &Workspace, kind: ElementKind) -> Mesh {
         .filter(|f| ws.inside[f.index()])
         .map(|f| ws.face_vertices(f))
         .collect();
-    let mut id = vec![u32::MAX; ws.cdt.num_vertices()];
+    let mut used = vec![false; ws.cdt.num_vertices()];
     for tri in &faces {
         for &v in tri {
-            id[v] = 0;
+            used[v] = true;
         }
     }
+    let mut id = vec![u32::MAX; used.len()];
     let mut points: Vec<[f64; 3]> = Vec::new();
-    for (v, slot) in id.iter_mut().enumerate() {
-        if *slot == 0 {
-            *slot = points.len() as u32;
-            let p = ws.position(v);
-            points.push([p[0], p[1], 0.0]);
-        }
+    for v in (0..used.len()).filter(|&v| used[v]) {
+        id[v] = points.len() as u32;
+        let p = ws.position(v);
+        points.push([p[0], p[1], 0.0]);
     }
     let mut nodes: Vec<u32> = Vec::with_capacity(faces.len() * kind.node_count());
     let mut mid: HashMap<(usize, usize), u32> = HashMap::new();
