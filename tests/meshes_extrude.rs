@@ -236,3 +236,48 @@ fn extrude_rejects_bad_input() {
         Err(MeshError::InvalidParameter { name: "layers", .. })
     ));
 }
+
+#[test]
+fn demo_deck_extruded_through_its_thickness() {
+    // The demo's 3D variant: the rounded quarter deck meshed in Tri6, extruded through 8 mm in
+    // two layers into wedge15 and tet10.
+    use hone::reference::meshes::{triangulate, Domain, Loop, MesherOptions, Segment};
+    let line = |x: f64, y: f64| Segment::Line { to: [x, y] };
+    let deck = Domain {
+        outer: Loop {
+            start: [200.0, 0.0],
+            segments: vec![
+                line(600.0, 0.0),
+                line(600.0, 400.0),
+                line(0.0, 400.0),
+                line(0.0, 125.0),
+                line(160.0, 125.0),
+                Segment::Arc {
+                    center: [160.0, 85.0],
+                    to: [200.0, 85.0],
+                    counter_clockwise: false,
+                },
+                line(200.0, 0.0),
+            ],
+        },
+        holes: vec![],
+    };
+    let size = |p: [f64; 2]| 8.0 + 0.2 * (p[0] - 200.0).hypot(p[1] - 125.0);
+    let base =
+        triangulate(&deck, &size, ElementKind::Tri6, &MesherOptions::default()).expect("mesh");
+    let area = measure(&base);
+    for kind in [ElementKind::Wedge15, ElementKind::Tet10] {
+        let mesh = extrude(&base, 8.0, 2, kind).expect("extrusion");
+        assert!(check_geometry(&mesh).is_empty(), "{kind}: bad elements");
+        let volume = measure(&mesh);
+        assert!(
+            ((volume - 8.0 * area) / (8.0 * area)).abs() <= ROUND_OFF,
+            "{kind}: volume {volume}, area {area}"
+        );
+        let (once, _) = facet_uses(&mesh);
+        if kind == ElementKind::Tet10 {
+            let (boundary_edges, _) = edge_counts(&base);
+            assert_eq!(once, 2 * base.element_count() + 2 * boundary_edges * 2);
+        }
+    }
+}

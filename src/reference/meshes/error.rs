@@ -121,6 +121,17 @@ pub enum MeshError {
         /// Where, y.
         y: f64,
     },
+    /// The triangulation library refused a boundary point (a coordinate too large or too close
+    /// to zero for its exact predicates).
+    #[error("the triangulation refused the point ({x}, {y}): {message}")]
+    Triangulation {
+        /// Point x.
+        x: f64,
+        /// Point y.
+        y: f64,
+        /// The library's reason.
+        message: String,
+    },
     /// An element kind the operation does not produce or accept.
     #[error("unsupported element kind {kind}: {expected}")]
     UnsupportedKind {

@@ -130,7 +130,7 @@ fn graded(k: usize, n: usize, ratio: f64) -> f64 {
 /// of the unit square `(u, v)` maps to `X = (1 - g(u)) a (cos theta, sin theta) + g(u) (l, l v)`
 /// with `theta = v pi/4`: straight radial lines from the hole to the edge `x = l`, whose points
 /// are equally spaced; block 2 is the mirror construction towards `y = l`, with `v` running
-/// counter-clockwise so that both blocks keep the orientation. `g` is [`graded`]: `ratio` is the
+/// counter-clockwise so that both blocks keep the orientation. `g` is the geometric grading: `ratio` is the
 /// width ratio of neighbouring radial cells, so the outermost cell is `ratio^(n_r - 1)` times the
 /// innermost. Mid nodes of radial edges sit halfway between their corners. Elements:
 /// `2 n_r n_theta` quadrilaterals or twice as many triangles.
@@ -188,7 +188,7 @@ pub fn plate_with_hole(
     mesh
 }
 
-/// L-shape (-1,1)^2 minus [0,1] x [-1,0] (removed quadrant x>0, y<0), scaled by `half_width`,
+/// L-shape `(-1,1)^2 minus [0,1] x [-1,0]` (removed quadrant x>0, y<0), scaled by `half_width`,
 /// n cells per unit length (three n x n blocks merged), re-entrant corner at the origin.
 ///
 /// The blocks are `[-1, 0] x [0, 1]`, `[0, 1] x [0, 1]` and `[-1, 0] x [-1, 0]` (times

@@ -14,12 +14,18 @@
 //! Every element produced has a positive Jacobian in VTK node order
 //! ([`check_geometry`](crate::mesh::check_geometry) finds nothing).
 
+mod boundary_cdt;
+mod domain;
 mod error;
 mod extrude;
 mod mapped;
 mod merge;
+mod refine;
+mod triangulate;
 
+pub use domain::{Domain, Loop, Segment, MAX_ARC_STEP};
 pub use error::{LoopId, MeshError};
 pub use extrude::extrude;
 pub use mapped::{l_shape, plate_with_hole, quarter_annulus};
 pub use merge::{measure, merge_coincident};
+pub use triangulate::{triangulate, MesherOptions};
