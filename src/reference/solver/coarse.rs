@@ -171,6 +171,9 @@ impl Coarse {
                 p.ptr.push(p.col.len() as u32);
             }
         }
+        if n_coarse == 0 {
+            return Ok(None);
+        }
         let pt = p.transpose(n_coarse as usize);
         let kc = galerkin(k, &p, &pt, n_coarse as usize);
         let factor = Factor::new(&kc)?;
