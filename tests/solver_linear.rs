@@ -84,6 +84,30 @@ fn conjugate_gradients_agree_with_cholesky_in_3d() {
     }
 }
 
+#[test]
+fn conjugate_gradients_agree_with_cholesky_in_2d_with_prescribed_displacements() {
+    // Non-zero prescribed values (the lift -K_fc u_c), a point load, quad9 with its coarse level.
+    let mesh = structured(ElementKind::Quad9, [12, 4, 1], [3.0, 1.0, 0.0]);
+    let left = select_nodes(&mesh, |p| p[0].abs() < 1e-9);
+    let tip = select_nodes(&mesh, |p| (p[0] - 3.0).abs() < 1e-9 && p[1].abs() < 1e-9);
+    let bc = BoundaryConditions {
+        constraints: prescribe(&mesh, left, 2, |p| [1e-3 * p[1], -2e-3 * p[1] * p[1], 0.0]),
+        point_loads: vec![(tip[0], [0.5, -2.0, 0.0])],
+        ..Default::default()
+    };
+    let materials = single(500.0, 0.25);
+    let mode = AnalysisMode::PlaneStrain;
+    let direct = solve(&mesh, &materials, mode, &bc, &SolveOptions::default()).unwrap();
+    let iterative = solve(&mesh, &materials, mode, &bc, &cg(1e-12)).unwrap();
+    let scale = max_abs(&direct.displacement);
+    for (a, b) in direct.displacement.iter().zip(&iterative.displacement) {
+        for c in 0..2 {
+            // As in 3D: CG residual 1e-12, small condition number.
+            assert_close(b[c], a[c], 1e-8, scale, "quad9 CG vs Cholesky");
+        }
+    }
+}
+
 fn expect_singular(result: Result<Solution, SolveError>, what: &str) {
     match result {
         Err(e @ SolveError::Singular { .. }) => {

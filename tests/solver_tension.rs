@@ -95,6 +95,21 @@ fn plane_or_solid(kind: ElementKind, mode: AnalysisMode, size: [f64; 3]) {
             );
         }
     }
+    // The estimator's own stress evaluation sees the uniform stress everywhere.
+    let model = hone::mesh::Model {
+        mesh: mesh.clone(),
+        displacement: solution.displacement.clone(),
+    };
+    let element_materials =
+        hone::recovery::ElementMaterials::new(&mesh, &single(E, NU), mode).unwrap();
+    let sampled = hone::recovery::sample_stresses(&model, &element_materials).unwrap();
+    for s in &sampled.stress {
+        let what = format!("{kind} {}: sampled stress", mode.name());
+        assert_close(s[0], SIGMA, TOLERANCE, SIGMA, &what);
+        for c in [1, 3, 4, 5] {
+            assert_close(s[c], 0.0, TOLERANCE, SIGMA, &what);
+        }
+    }
     let thickness = match mode {
         AnalysisMode::PlaneStress { thickness } => thickness,
         _ => 1.0,
@@ -180,6 +195,99 @@ fn axial_tension_of_a_tube_for_every_2d_kind() {
             TOLERANCE,
             energy,
             &what,
+        );
+    }
+}
+
+#[test]
+fn two_materials_in_series_in_two_blocks() {
+    // Bar [0, 2] x [0, 1], zone 1 (x < 1): E1 = 100, nu1 = 0.2; zone 2: E2 = 200, nu2 = 0.4.
+    // Equal nu / E makes the lateral strains match at the interface, so the uniform-stress
+    // state is exact (Hooke per zone, common practice): u_x = sigma x / E1 for x <= 1,
+    // sigma / E1 + sigma (x - 1) / E2 beyond; u_y = -(nu / E) sigma y.
+    use hone::material::{Material, MaterialMap};
+    use hone::mesh::{CellBlock, Mesh};
+    use std::collections::BTreeMap;
+    let kind = ElementKind::Quad8;
+    let one = hone::mesh::generate::structured(kind, [4, 2, 1], [2.0, 1.0, 0.0]);
+    let nn = kind.node_count();
+    let (mut left, mut right) = (Vec::new(), Vec::new());
+    for e in 0..one.element_count() {
+        if one.centroid(e)[0] < 1.0 {
+            left.push(e);
+        } else {
+            right.push(e);
+        }
+    }
+    let block = |cells: &[usize], first: usize| CellBlock {
+        kind,
+        nodes: cells
+            .iter()
+            .flat_map(|&e| one.element(e).1.to_vec())
+            .collect(),
+        first_element: first,
+    };
+    let order: Vec<usize> = left.iter().chain(&right).copied().collect();
+    let mesh = Mesh {
+        points: one.points.clone(),
+        blocks: vec![block(&left, 0), block(&right, left.len())],
+        file_cell: order.iter().map(|&e| e as u32).collect(),
+        zone: order
+            .iter()
+            .map(|&e| if left.contains(&e) { 1 } else { 2 })
+            .collect(),
+        dimension: 2,
+    };
+    assert_eq!(mesh.blocks[1].nodes.len(), right.len() * nn);
+    let materials = MaterialMap::ByZone(BTreeMap::from([
+        (1, Material::new(100.0, 0.2, "").unwrap()),
+        (2, Material::new(200.0, 0.4, "").unwrap()),
+    ]));
+    let at = |v: f64, w: f64| (v - w).abs() < 1e-9;
+    let mut constraints: Vec<Constraint> = select_nodes(&mesh, |p| at(p[0], 0.0))
+        .into_iter()
+        .map(|node| Constraint {
+            node,
+            component: 0,
+            value: 0.0,
+        })
+        .collect();
+    constraints.push(Constraint {
+        node: select_nodes(&mesh, |p| at(p[0], 0.0) && at(p[1], 0.0))[0],
+        component: 1,
+        value: 0.0,
+    });
+    let bc = BoundaryConditions {
+        constraints,
+        tractions: vec![TractionLoad {
+            facets: select_facets(&mesh, |c| c.iter().all(|p| at(p[0], 2.0))),
+            traction: Arc::new(|_, _| [SIGMA, 0.0, 0.0]),
+        }],
+        ..Default::default()
+    };
+    let mode = AnalysisMode::PlaneStress { thickness: 1.0 };
+    let solution = solve(&mesh, &materials, mode, &bc, &SolveOptions::default()).unwrap();
+    let scale = SIGMA * (1.0 / 100.0 + 1.0 / 200.0);
+    for (n, p) in mesh.points.iter().enumerate() {
+        let ux = if p[0] <= 1.0 {
+            SIGMA * p[0] / 100.0
+        } else {
+            SIGMA / 100.0 + SIGMA * (p[0] - 1.0) / 200.0
+        };
+        let uy = -0.002 * SIGMA * p[1];
+        assert_close(
+            solution.displacement[n][0],
+            ux,
+            TOLERANCE,
+            scale,
+            &format!("node {n} u_x"),
+        );
+        assert_close(
+            solution.displacement[n][1],
+            uy,
+            TOLERANCE,
+            scale,
+            &format!("node {n} u_y"),
         );
     }
 }

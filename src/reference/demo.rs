@@ -16,7 +16,10 @@
 //! mid-plane z = 0), the same triangles extruded into tet10.
 
 use super::meshes::{extrude, triangulate, Domain, Loop, MeshError, MesherOptions, Segment};
-use super::solver::{select_facets, select_nodes, solve, BoundaryConditions, Constraint, SolveError, SolveOptions, TractionLoad};
+use super::solver::{
+    select_facets, select_nodes, solve, BoundaryConditions, Constraint, SolveError, SolveOptions,
+    TractionLoad,
+};
 use crate::element::ElementKind;
 use crate::material::{AnalysisMode, Material, MaterialMap};
 use crate::mesh::{Mesh, Model};
@@ -35,7 +38,10 @@ pub const THICKNESS: f64 = 8.0;
 /// Tension on the edge x = 600.
 pub const TENSION: f64 = 60.0;
 /// Steel.
-pub const MATERIAL: Material = Material { youngs: 206_000.0, poisson: 0.3 };
+pub const MATERIAL: Material = Material {
+    youngs: 206_000.0,
+    poisson: 0.3,
+};
 
 /// The two corner variants.
 #[derive(Copy, Clone, Debug, PartialEq, Eq)]
@@ -84,11 +90,21 @@ pub fn domain(corner: Corner) -> Domain {
         Corner::Rounded => {
             let r = CORNER_RADIUS;
             segments.push(Segment::Line { to: [a - r, b] });
-            segments.push(Segment::Arc { center: [a - r, b - r], to: [a, b - r], counter_clockwise: false });
+            segments.push(Segment::Arc {
+                center: [a - r, b - r],
+                to: [a, b - r],
+                counter_clockwise: false,
+            });
         }
     }
     segments.push(Segment::Line { to: [a, 0.0] });
-    Domain { outer: Loop { start: [a, 0.0], segments }, holes: Vec::new() }
+    Domain {
+        outer: Loop {
+            start: [a, 0.0],
+            segments,
+        },
+        holes: Vec::new(),
+    }
 }
 
 /// Target element size: `far` away from the corner, shrinking linearly towards it.
@@ -101,7 +117,12 @@ fn size_field(far: f64) -> impl Fn([f64; 2]) -> f64 + Sync {
 
 /// The 2D tri6 mesh of a variant with far-field size `far` (mm).
 pub fn plate_mesh(corner: Corner, far: f64) -> Result<Mesh, DemoError> {
-    Ok(triangulate(&domain(corner), &size_field(far), ElementKind::Tri6, &MesherOptions::default())?)
+    Ok(triangulate(
+        &domain(corner),
+        &size_field(far),
+        ElementKind::Tri6,
+        &MesherOptions::default(),
+    )?)
 }
 
 /// Solves the plate on `mesh` (2D plane stress, or a 3D half-thickness mesh).
@@ -110,27 +131,63 @@ pub fn solve_plate(mesh: &Mesh) -> Result<Model, DemoError> {
     let tol = 1e-6;
     let mut constraints = Vec::new();
     for node in select_nodes(mesh, |p| p[0].abs() < tol) {
-        constraints.push(Constraint { node, component: 0, value: 0.0 });
+        constraints.push(Constraint {
+            node,
+            component: 0,
+            value: 0.0,
+        });
     }
     for node in select_nodes(mesh, |p| p[1].abs() < tol) {
-        constraints.push(Constraint { node, component: 1, value: 0.0 });
+        constraints.push(Constraint {
+            node,
+            component: 1,
+            value: 0.0,
+        });
     }
     if three_d {
         for node in select_nodes(mesh, |p| p[2].abs() < tol) {
-            constraints.push(Constraint { node, component: 2, value: 0.0 });
+            constraints.push(Constraint {
+                node,
+                component: 2,
+                value: 0.0,
+            });
         }
     }
     let load = TractionLoad {
         facets: select_facets(mesh, |f| f.iter().all(|p| (p[0] - PANEL[0]).abs() < tol)),
         traction: Arc::new(|_, _| [TENSION, 0.0, 0.0]),
     };
-    let mode = if three_d { AnalysisMode::Solid3d } else { AnalysisMode::PlaneStress { thickness: THICKNESS } };
-    let bc = BoundaryConditions { constraints, tractions: vec![load], ..Default::default() };
-    let solution = solve(mesh, &MaterialMap::Single(MATERIAL), mode, &bc, &SolveOptions::default())?;
-    Ok(Model { mesh: mesh.clone(), displacement: solution.displacement })
+    let mode = if three_d {
+        AnalysisMode::Solid3d
+    } else {
+        AnalysisMode::PlaneStress {
+            thickness: THICKNESS,
+        }
+    };
+    let bc = BoundaryConditions {
+        constraints,
+        tractions: vec![load],
+        ..Default::default()
+    };
+    let solution = solve(
+        mesh,
+        &MaterialMap::Single(MATERIAL),
+        mode,
+        &bc,
+        &SolveOptions::default(),
+    )?;
+    Ok(Model {
+        mesh: mesh.clone(),
+        displacement: solution.displacement,
+    })
 }
 
 /// The 3D tet10 mesh: the 2D triangles extruded through half the thickness in `layers` layers.
 pub fn solid_mesh(mesh2d: &Mesh, layers: usize) -> Result<Mesh, DemoError> {
-    Ok(extrude(mesh2d, THICKNESS / 2.0, layers, ElementKind::Tet10)?)
+    Ok(extrude(
+        mesh2d,
+        THICKNESS / 2.0,
+        layers,
+        ElementKind::Tet10,
+    )?)
 }

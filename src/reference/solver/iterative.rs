@@ -1,11 +1,13 @@
 //! Preconditioned conjugate gradients (Hestenes & Stiefel 1952, "Methods of conjugate gradients
 //! for solving linear systems", J. Res. NBS 49:409-436; the preconditioned form as in Saad 2003,
 //! "Iterative Methods for Sparse Linear Systems", Algorithm 9.1 (from memory)) with a node-block
-//! Jacobi preconditioner: the inverse of each node's diagonal block of free dofs (1x1 to 3x3).
+//! Jacobi preconditioner (the inverse of each node's diagonal block of free dofs, 1x1 to 3x3),
+//! plus the coarse corner-node level of [`super::coarse`] on meshes with quadratic elements.
 //!
 //! Every vector operation is parallel and element-wise; dot products sum fixed-size chunks in
 //! parallel and then the chunk sums in order, so iterates are identical for any thread count.
 
+use super::coarse::Coarse;
 use super::pattern::Csr;
 use super::SolveError;
 use rayon::prelude::*;
@@ -103,11 +105,13 @@ impl BlockJacobi {
 }
 
 /// Solves `a x = b` by preconditioned CG from `x = 0`. `blocks` are the equation ranges of the
-/// nodes (consecutive, covering all equations). Returns `x` and the iteration count.
+/// nodes (consecutive, covering all equations); `coarse`, when given, adds its two-level term
+/// to the block-Jacobi preconditioner. Returns `x` and the iteration count.
 pub(super) fn conjugate_gradient(
     a: &Csr,
     b: &[f64],
     blocks: &[(u32, u8)],
+    coarse: Option<&Coarse>,
     tolerance: f64,
     max_iterations: usize,
 ) -> Result<(Vec<f64>, usize), SolveError> {
@@ -120,7 +124,14 @@ pub(super) fn conjugate_gradient(
     let jacobi = BlockJacobi::new(a, blocks)?;
     let mut r = b.to_vec();
     let mut z = vec![0.0; n];
-    jacobi.apply(&r, &mut z);
+    let precondition = |r: &[f64], z: &mut [f64]| -> Result<(), SolveError> {
+        jacobi.apply(r, z);
+        match coarse {
+            Some(c) => c.add(r, z),
+            None => Ok(()),
+        }
+    };
+    precondition(&r, &mut z)?;
     let mut p = z.clone();
     let mut q = vec![0.0; n];
     let mut rz = dot(&r, &z);
@@ -145,7 +156,7 @@ pub(super) fn conjugate_gradient(
         if residual <= tolerance {
             return Ok((x, it));
         }
-        jacobi.apply(&r, &mut z);
+        precondition(&r, &mut z)?;
         let rz_new = dot(&r, &z);
         let beta = rz_new / rz;
         rz = rz_new;

@@ -23,6 +23,7 @@
 //! method, the axisymmetric B and consistent loads; common practice.)
 
 mod assembly;
+mod coarse;
 mod direct;
 mod dofs;
 mod exact;
@@ -41,7 +42,7 @@ pub use gauss::{gauss_legendre, reference_rule};
 pub use loads::{facet_shape, FacetShape};
 pub use output::write_results;
 pub use select::{boundary_facets, select_facets, select_nodes};
-pub use solve::solve;
+pub use solve::{solve, solve_timed};
 
 use crate::material::MaterialError;
 use crate::recovery::MissingZoneMaterial;
@@ -95,8 +96,10 @@ pub struct BoundaryConditions {
 pub enum LinearSolver {
     /// Sparse Cholesky factorisation (faer, with its fill-reducing ordering).
     Cholesky,
-    /// Preconditioned conjugate gradients (Hestenes & Stiefel 1952) with a node-block Jacobi
-    /// preconditioner; stops when `||r|| <= relative_tolerance ||b||`.
+    /// Preconditioned conjugate gradients (Hestenes & Stiefel 1952); stops when
+    /// `||r|| <= relative_tolerance ||b||`. Preconditioner: node-block Jacobi, plus on meshes
+    /// with quadratic elements an exactly solved coarse level (the corner-node linear field,
+    /// Galerkin `P^T K P`) that keeps the iteration count nearly independent of the mesh size.
     ConjugateGradient {
         /// Required reduction of the residual's Euclidean norm, relative to the right side.
         relative_tolerance: f64,
@@ -134,6 +137,19 @@ pub struct Solution {
     pub dofs: usize,
     /// Conjugate-gradient iterations, when CG was used.
     pub iterations: Option<usize>,
+}
+
+/// Wall-clock seconds of the stages of [`solve_timed`].
+#[derive(Copy, Clone, Debug, Default)]
+pub struct SolveTimings {
+    /// Checks, materials, dof numbering, support check, loads, node adjacency.
+    pub setup: f64,
+    /// Sparsity pattern, element matrices and their addition into the global matrix.
+    pub assembly: f64,
+    /// Factorisation and triangular solves, or the CG iterations.
+    pub linear_solve: f64,
+    /// Strain energy and external work of the solution.
+    pub energy: f64,
 }
 
 /// Why a problem could not be solved. Cells are named by their file cell id

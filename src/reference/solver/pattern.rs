@@ -181,28 +181,6 @@ impl NodeGraph {
 }
 
 impl Csr {
-    /// Position in `val` of free dof `(m, d)` (neighbour entry `km` of node `a`) in the row of
-    /// free dof `(a, c)` (node `a`'s own entry `ka`). In upper storage the column must not be
-    /// left of the diagonal.
-    #[inline]
-    pub fn position(
-        &self,
-        graph: &NodeGraph,
-        dofs: &DofMap,
-        row: u32,
-        (a, c, ka): (usize, usize, usize),
-        (m, d, km): (usize, usize, usize),
-    ) -> usize {
-        let full = (graph.prefix[km] + dofs.free_rank(m, d)) as usize;
-        let start = self.row_ptr[row as usize] as usize;
-        if self.upper {
-            let diag = (graph.prefix[ka] + dofs.free_rank(a, c)) as usize;
-            start + full - diag
-        } else {
-            start + full
-        }
-    }
-
     /// `y = A x` for a full-pattern matrix, parallel over rows (each row summed in column order,
     /// so the result does not depend on the thread count).
     pub fn multiply(&self, x: &[f64], y: &mut [f64]) {

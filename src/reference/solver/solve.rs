@@ -1,6 +1,7 @@
 //! The solve driver: checks, dof numbering, loads, assembly, linear solve, energies.
 
 use super::assembly::assemble;
+use super::coarse::Coarse;
 use super::direct::cholesky_solve;
 use super::dofs::{DofMap, NONE};
 use super::iterative::conjugate_gradient;
@@ -8,11 +9,12 @@ use super::loads::{add_point_loads, add_traction};
 use super::pattern::NodeGraph;
 use super::rigid::check_supports;
 use super::stiffness::element_energy;
-use super::{BoundaryConditions, LinearSolver, Solution, SolveError, SolveOptions};
+use super::{BoundaryConditions, LinearSolver, Solution, SolveError, SolveOptions, SolveTimings};
 use crate::material::{AnalysisMode, MaterialMap};
 use crate::mesh::Mesh;
 use crate::recovery::{ElementData, ElementMaterials};
 use rayon::prelude::*;
+use std::time::Instant;
 
 /// Checks that the mesh has elements and that every block fits the mode's dimension.
 fn check_mesh(mesh: &Mesh, mode: AnalysisMode) -> Result<(), SolveError> {
@@ -80,6 +82,19 @@ pub fn solve(
     bc: &BoundaryConditions,
     options: &SolveOptions,
 ) -> Result<Solution, SolveError> {
+    solve_timed(mesh, materials, mode, bc, options).map(|(solution, _)| solution)
+}
+
+/// [`solve`], also returning the wall-clock time of each stage (for benchmarks).
+pub fn solve_timed(
+    mesh: &Mesh,
+    materials: &MaterialMap,
+    mode: AnalysisMode,
+    bc: &BoundaryConditions,
+    options: &SolveOptions,
+) -> Result<(Solution, SolveTimings), SolveError> {
+    let clock = Instant::now();
+    let mut timings = SolveTimings::default();
     let mode = mode.validate()?;
     check_mesh(mesh, mode)?;
     check_options(options)?;
@@ -95,6 +110,8 @@ pub fn solve(
     add_point_loads(&dofs.used, ndim, &bc.point_loads, &mut loads)?;
 
     let graph = NodeGraph::new(mesh, &dofs);
+    timings.setup = clock.elapsed().as_secs_f64();
+    let clock = Instant::now();
     let upper = options.solver == LinearSolver::Cholesky;
     let system = assemble(
         mesh,
@@ -114,6 +131,8 @@ pub fn solve(
             loads[dof]
         )));
     }
+    timings.assembly = clock.elapsed().as_secs_f64();
+    let clock = Instant::now();
     let mut rhs = system.lift;
     for (dof, &e) in dofs.eq.iter().enumerate() {
         if e != NONE {
@@ -138,10 +157,12 @@ pub fn solve(
                     blocks.push((first, dofs.free_count(node) as u8));
                 }
             }
+            let coarse = Coarse::new(mesh, &dofs, &system.matrix)?;
             let (x, it) = conjugate_gradient(
                 &system.matrix,
                 &rhs,
                 &blocks,
+                coarse.as_ref(),
                 relative_tolerance,
                 max_iterations,
             )?;
@@ -150,6 +171,8 @@ pub fn solve(
         }
     };
     drop(system.matrix);
+    timings.linear_solve = clock.elapsed().as_secs_f64();
+    let clock = Instant::now();
 
     let mut displacement = vec![[0.0; 3]; mesh.node_count()];
     for (node, u) in displacement.iter_mut().enumerate() {
@@ -169,13 +192,15 @@ pub fn solve(
         external_work += f * displacement[dof / ndim][dof % ndim];
     }
     let strain_energy = strain_energy(mesh, &element_materials, mode, &displacement)?;
-    Ok(Solution {
+    timings.energy = clock.elapsed().as_secs_f64();
+    let solution = Solution {
         displacement,
         strain_energy,
         external_work,
         dofs: dofs.used_count * ndim,
         iterations,
-    })
+    };
+    Ok((solution, timings))
 }
 
 /// `U_h` summed over elements in order.

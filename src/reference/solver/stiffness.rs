@@ -16,15 +16,6 @@ use crate::recovery::ElementData;
 /// Largest number of dofs of one element (27 nodes x 3 components).
 pub(super) const MAX_DOF: usize = MAX_NODES * 3;
 
-/// The strain components a mode uses (the others have zero rows and columns in D).
-pub(super) fn active_components(mode: AnalysisMode) -> &'static [usize] {
-    match mode {
-        AnalysisMode::Solid3d => &[0, 1, 2, 3, 4, 5],
-        AnalysisMode::Axisymmetric => &[0, 1, 2, 3],
-        AnalysisMode::PlaneStress { .. } | AnalysisMode::PlaneStrain => &[0, 1, 3],
-    }
-}
-
 /// Fixed data of one block's kernel.
 #[derive(Copy, Clone)]
 pub(super) struct Kernel {
@@ -56,6 +47,9 @@ impl Kernel {
 
     /// Writes `K_e` (row-major, `dofs() x dofs()`) into `ke` and the body-force vector into
     /// `fe`. Returns `false` when det J is not positive and finite at some quadrature point.
+    ///
+    /// B is kept column by column with its at most three non-zero rows, so `D B` costs 18
+    /// multiply-adds per column and each entry of `B^T (D B)` three.
     pub fn element(
         &self,
         coords: &[[f64; 3]],
@@ -67,14 +61,13 @@ impl Kernel {
         let nn = self.kind.node_count();
         let nd = nn * self.ndim;
         let dim = self.kind.dim();
-        let active = active_components(self.mode);
         let d = &elasticity.stiffness;
         ke[..nd * nd].fill(0.0);
         fe[..nd].fill(0.0);
         let size = coords[..nn].iter().map(|x| x[0].abs()).fold(0.0, f64::max);
         let mut dn = [[0.0; 3]; MAX_NODES];
-        let mut b = [[0.0; MAX_DOF]; 6];
-        let mut db = [[0.0; MAX_DOF]; 6];
+        let mut b = [Column::default(); MAX_DOF];
+        let mut db = [[0.0; 6]; MAX_DOF];
         for k in 0..self.table.len() {
             let det = map_gradients(dim, &coords[..nn], self.table.dn_at(k), &mut dn[..nn]);
             if !(det.is_finite() && det > 0.0) {
@@ -89,22 +82,26 @@ impl Kernel {
             }
             let wt = self.table.weights[k] * det * self.mode.measure_factor(x[0]);
             self.fill_b(&dn[..nn], n, x[0], size, &mut b);
-            for &i in active {
-                for q in 0..nd {
-                    let mut acc = 0.0;
-                    for &j in active {
-                        acc += d[i][j] * b[j][q];
+            for q in 0..nd {
+                let col = &b[q];
+                let mut out = [0.0; 6];
+                for t in 0..col.len {
+                    let (r, v) = (col.rows[t], col.values[t]);
+                    for (o, row) in out.iter_mut().zip(d.iter()) {
+                        *o += row[r] * v;
                     }
-                    db[i][q] = acc;
                 }
+                db[q] = out;
             }
             for p in 0..nd {
+                let col = b[p];
+                let row = &mut ke[p * nd..(p + 1) * nd];
                 for q in p..nd {
                     let mut acc = 0.0;
-                    for &i in active {
-                        acc += b[i][p] * db[i][q];
+                    for t in 0..col.len {
+                        acc += col.values[t] * db[q][col.rows[t]];
                     }
-                    ke[p * nd + q] += wt * acc;
+                    row[q] += wt * acc;
                 }
             }
             if let Some(body) = body {
@@ -124,41 +121,47 @@ impl Kernel {
         true
     }
 
-    /// B at one point from physical gradients `dn`, shape values `n` and the radius `r`
-    /// (axisymmetric only; `size` is the element's largest |x|, for the on-axis test of
-    /// `ElementData::strain_at`).
-    fn fill_b(&self, dn: &[[f64; 3]], n: &[f64], r: f64, size: f64, b: &mut [[f64; MAX_DOF]; 6]) {
-        let nn = dn.len();
-        let nd = nn * self.ndim;
-        for row in b.iter_mut() {
-            row[..nd].fill(0.0);
-        }
+    /// The columns of B at one point from physical gradients `dn`, shape values `n` and the
+    /// radius `r` (axisymmetric only; `size` is the element's largest |x|, for the on-axis test
+    /// of `ElementData::strain_at`).
+    fn fill_b(&self, dn: &[[f64; 3]], n: &[f64], r: f64, size: f64, b: &mut [Column; MAX_DOF]) {
         let axisymmetric = self.mode == AnalysisMode::Axisymmetric;
         let off_axis = r > 1e-12 * size.max(f64::MIN_POSITIVE);
-        for a in 0..nn {
-            let g = dn[a];
+        for (a, g) in dn.iter().enumerate() {
             if self.ndim == 2 {
-                let (u, v) = (2 * a, 2 * a + 1);
-                b[0][u] = g[0];
-                b[3][u] = g[1];
-                b[1][v] = g[1];
-                b[3][v] = g[0];
-                if axisymmetric {
-                    b[2][u] = if off_axis { n[a] / r } else { g[0] };
-                }
+                b[2 * a] = if axisymmetric {
+                    let hoop = if off_axis { n[a] / r } else { g[0] };
+                    Column::new(&[(0, g[0]), (2, hoop), (3, g[1])])
+                } else {
+                    Column::new(&[(0, g[0]), (3, g[1])])
+                };
+                b[2 * a + 1] = Column::new(&[(1, g[1]), (3, g[0])]);
             } else {
-                let (u, v, w) = (3 * a, 3 * a + 1, 3 * a + 2);
-                b[0][u] = g[0];
-                b[3][u] = g[1];
-                b[5][u] = g[2];
-                b[1][v] = g[1];
-                b[3][v] = g[0];
-                b[4][v] = g[2];
-                b[2][w] = g[2];
-                b[4][w] = g[1];
-                b[5][w] = g[0];
+                b[3 * a] = Column::new(&[(0, g[0]), (3, g[1]), (5, g[2])]);
+                b[3 * a + 1] = Column::new(&[(1, g[1]), (3, g[0]), (4, g[2])]);
+                b[3 * a + 2] = Column::new(&[(2, g[2]), (4, g[1]), (5, g[0])]);
             }
         }
+    }
+}
+
+/// One column of B: its non-zero strain rows and values.
+#[derive(Copy, Clone, Default)]
+struct Column {
+    rows: [usize; 3],
+    values: [f64; 3],
+    len: usize,
+}
+
+impl Column {
+    fn new(entries: &[(usize, f64)]) -> Self {
+        let mut c = Column::default();
+        for (t, &(r, v)) in entries.iter().enumerate() {
+            c.rows[t] = r;
+            c.values[t] = v;
+        }
+        c.len = entries.len();
+        c
     }
 }
 
