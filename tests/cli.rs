@@ -398,3 +398,48 @@ fn external_file_with_a_smooth_field_gives_a_sensible_summary() {
     let text = String::from_utf8(text.stdout).unwrap();
     assert!(text.contains("tet10 96"), "{text}");
 }
+
+/// `hone demo DIR` writes the four result files, can run again into its own folder, and
+/// refuses to replace a file it did not create.
+#[test]
+fn demo_writes_its_files_and_protects_others() {
+    let dir = scratch("demo");
+    let out = dir.join("run");
+    let o = hone(&["demo", out.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let text = String::from_utf8(o.stdout).unwrap();
+    for name in [
+        "deck_sharp_tri6.vtu",
+        "deck_rounded_tri6.vtu",
+        "deck_sharp_tet10.vtu",
+        "deck_rounded_tet10.vtu",
+    ] {
+        let back = hone::io::read_vtu(&out.join(name)).expect("demo file reads");
+        assert!(back.point_array("displacement").is_some(), "{name}");
+    }
+    assert!(
+        text.contains("sharp")
+            && text.contains("rounded")
+            && text.contains("discretisation error only")
+    );
+    // Again into the same folder: its own files may be replaced.
+    assert_eq!(
+        hone(&["demo", out.to_str().unwrap()]).status.code(),
+        Some(0)
+    );
+    // A foreign file with a demo name is never replaced.
+    let foreign = dir.join("foreign");
+    std::fs::create_dir_all(&foreign).unwrap();
+    std::fs::write(foreign.join("deck_sharp_tri6.vtu"), "mine").unwrap();
+    let o = hone(&["demo", foreign.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        stderr(&o).contains("was not written by hone demo"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(
+        std::fs::read_to_string(foreign.join("deck_sharp_tri6.vtu")).unwrap(),
+        "mine"
+    );
+}

@@ -29,6 +29,15 @@ pub enum Command {
     Inspect(InspectArgs),
     /// Recover stresses (SPR) and estimate the energy-norm discretisation error per element.
     Estimate(EstimateArgs),
+    /// Build, solve and estimate the shipped demo scenario (a deck plate with a hatch opening).
+    Demo(DemoArgs),
+}
+
+/// `hone demo [DIR]`.
+#[derive(Debug, Args)]
+pub struct DemoArgs {
+    /// Folder for the result files (default: a new folder hone-demo in the current folder).
+    pub dir: Option<PathBuf>,
 }
 
 /// `hone inspect FILE`.

@@ -3,6 +3,7 @@
 //! codes. Only this layer prints.
 
 pub mod args;
+mod demo;
 mod estimate;
 pub use estimate::{size_now, write_annotated};
 mod inspect;
@@ -62,5 +63,6 @@ pub fn run(cli: Cli) -> Result<Outcome> {
     match cli.command {
         Command::Inspect(a) => inspect::run(&a, cli.json),
         Command::Estimate(a) => estimate::run(&a, cli.json, cli.quiet),
+        Command::Demo(a) => demo::run(&a),
     }
 }
