@@ -73,18 +73,33 @@ impl BoundaryFacets {
                 let zone = mesh.zone[e];
                 let mut mask = 0u8;
                 for (f, facet) in kind.facets().iter().enumerate() {
-                    let c0 = nodes[facet.corners[0]] as usize;
-                    let shared = adjacency.of(c0).iter().any(|&other| {
-                        let other = other as usize;
-                        if other == e || mesh.zone[other] != zone {
-                            return false;
+                    // Candidates share the facet's first two corners: walk the two sorted
+                    // adjacency lists together (a merge), then check the remaining corners.
+                    let a = adjacency.of(nodes[facet.corners[0]] as usize);
+                    let b = adjacency.of(nodes[facet.corners[1]] as usize);
+                    let (mut i, mut j) = (0, 0);
+                    let mut shared = false;
+                    while i < a.len() && j < b.len() && !shared {
+                        match a[i].cmp(&b[j]) {
+                            std::cmp::Ordering::Less => i += 1,
+                            std::cmp::Ordering::Greater => j += 1,
+                            std::cmp::Ordering::Equal => {
+                                let other = a[i] as usize;
+                                i += 1;
+                                j += 1;
+                                if other == e || mesh.zone[other] != zone {
+                                    continue;
+                                }
+                                let (okind, onodes) = mesh.element(other);
+                                let overts = &onodes[..okind.vertex_count()];
+                                shared = facet.corners[2..]
+                                    .iter()
+                                    .all(|&c| overts.contains(&nodes[c]))
+                                    && overts.contains(&nodes[facet.corners[0]])
+                                    && overts.contains(&nodes[facet.corners[1]]);
+                            }
                         }
-                        let (okind, onodes) = mesh.element(other);
-                        let overts = &onodes[..okind.vertex_count()];
-                        facet.corners[1..]
-                            .iter()
-                            .all(|&c| overts.contains(&nodes[c]))
-                    });
+                    }
                     if !shared {
                         mask |= 1 << f;
                     }
