@@ -91,11 +91,11 @@ fn characteristic(l: Complex, alpha: f64, kappa: f64) -> (Complex, Complex) {
 /// Smallest root `(Re lambda, |Im lambda|)` with `Re lambda > 0` of the clamped-free
 /// characteristic equation (module docs), searched from Newton starts on
 /// `Re in [0.02, 1.79]`, `Im in [0, 1.45]` (a grid of 60 x 30; the sheet's roots have
-/// `|Im| < 0.12`). `None` for an angle outside `(0, 2 pi]`, a `kappa` outside `[1, 3]` (the
-/// range of both formulas for `0 <= nu <= 0.5`; a little beyond is allowed) or no root found.
+/// `|Im| < 0.12`). `None` for an angle outside `(0, 2 pi]`, a `kappa` outside `(0.5, 4)` (both
+/// formulas give `[1, 3]` for `0 <= nu <= 0.5`) or no root found.
 pub fn clamped_free_root(alpha: f64, kappa: f64) -> Option<(f64, f64)> {
     let valid_alpha = alpha.is_finite() && alpha > 0.0 && alpha <= 2.0 * std::f64::consts::PI;
-    if !valid_alpha || !(kappa.is_finite() && kappa > 0.5 && kappa < 4.0) {
+    if !(valid_alpha && kappa.is_finite() && kappa > 0.5 && kappa < 4.0) {
         return None;
     }
     let scale = kappa * kappa + 1.0;
@@ -119,10 +119,9 @@ pub fn clamped_free_root(alpha: f64, kappa: f64) -> Option<(f64, f64)> {
             }
             // accept a root when the residual is tiny against the constant term kappa^2 + 1
             let (g, _) = characteristic(l, alpha, kappa);
-            if g.abs() < 1e-11 * scale && l.re > 1e-6 && l.re.is_finite() {
-                if best.is_none_or(|b| l.re < b.re - 1e-12) {
-                    best = Some(l);
-                }
+            let root = g.abs() < 1e-11 * scale && l.re > 1e-6 && l.re.is_finite();
+            if root && best.is_none_or(|b| l.re < b.re - 1e-12) {
+                best = Some(l);
             }
         }
     }

@@ -151,3 +151,17 @@ fn bad_inputs_are_typed_errors() {
     ));
     assert!(optimal_sizes_mixed(&ERRORS, &[1.0, 0.0, 1.0, 1.0], 1.0, 0.05, 2.0).is_err());
 }
+
+#[test]
+fn classic_and_optimal_reach_the_same_global_error() {
+    // Method sheet 3.8 [V]: both plans predict ebar_tot; the optimal one needs 34 % fewer
+    // elements (22.03 vs 33.29). Predicted error of a plan: sum ||e||_i^2 s_i^(2p), p = 1.
+    let classic = classic_sizes(&ERRORS, ENERGY_SQ, TARGET, 1.0, 2.0).unwrap();
+    let optimal = optimal_sizes(&ERRORS, ENERGY_SQ, TARGET, 1.0, 2.0).unwrap();
+    let predicted = |r: &[f64]| -> f64 { ERRORS.iter().zip(r).map(|(e, s)| e * e * s * s).sum() };
+    // four terms with a few roundings each: 1e-12 relative
+    assert!(close(predicted(&classic.ratio), 0.02553125, 1e-12));
+    assert!(close(predicted(&optimal.ratio), 0.02553125, 1e-12));
+    let saving = 1.0 - optimal.predicted_elements / classic.predicted_elements;
+    assert!((saving - 0.34).abs() < 0.005, "{saving}"); // sheet rounds to whole percent
+}
