@@ -15,6 +15,7 @@ pub mod estimate;
 pub mod io;
 pub mod material;
 pub mod mesh;
+pub mod plan;
 pub mod recovery;
 pub mod reference;
 pub mod report;
