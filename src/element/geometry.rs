@@ -54,6 +54,28 @@ fn det_inv(j: &[[f64; 3]; 3]) -> (f64, [[f64; 3]; 3]) {
     (det, inv)
 }
 
+/// Determinant and inverse of a Jacobian `j` (rows: natural directions) of a `dim`-dimensional
+/// map; in 2D only the x-y block is used and the third row and column of the inverse are those
+/// of the identity. The inverse is only meaningful when the determinant is non-zero and finite.
+#[inline]
+pub fn invert_jacobian(dim: usize, j: &[[f64; 3]; 3]) -> (f64, [[f64; 3]; 3]) {
+    if dim == 2 {
+        let mut planar = [[0.0; 3]; 3];
+        planar[0][..2].copy_from_slice(&j[0][..2]);
+        planar[1][..2].copy_from_slice(&j[1][..2]);
+        planar[2][2] = 1.0;
+        det_inv(&planar)
+    } else {
+        det_inv(j)
+    }
+}
+
+/// det J at one point from the nodal coordinates and reference gradients (2D: the x-y block).
+#[inline]
+pub fn jacobian_determinant(dim: usize, coords: &[[f64; 3]], dn_ref: &[[f64; 3]]) -> f64 {
+    det_inv(&jacobian(dim, coords, dn_ref)).0
+}
+
 /// Maps reference gradients to physical ones for one point. `dim` 2 uses x, y only; 3 uses
 /// x, y, z. Returns `det J` (the caller treats `det <= 0` or non-finite as an inverted or
 /// degenerate element); fills `dn_phys[i] = J^-1 dn_ref[i]` only when `det > 0` (third entry 0

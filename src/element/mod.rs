@@ -27,7 +27,9 @@ mod wedge;
 #[cfg(test)]
 mod tests;
 
-pub use geometry::{interpolate_point, inverse_map, map_gradients};
+pub use geometry::{
+    interpolate_point, inverse_map, invert_jacobian, jacobian_determinant, map_gradients,
+};
 pub use patch_basis::PatchBasis;
 pub use quadrature::{QuadraturePoint, Rule};
 pub use table::{ShapeTable, TableRule};

@@ -3,7 +3,7 @@
 //! reported by their file id instead of producing NaN later.
 
 use super::Mesh;
-use crate::element::{map_gradients, TableRule, MAX_NODES};
+use crate::element::{jacobian_determinant, map_gradients, TableRule, MAX_NODES};
 use rayon::prelude::*;
 
 /// Why an element was rejected.
@@ -26,7 +26,7 @@ pub struct BadElement {
 
 /// Relative determinant below which an element counts as collapsed: det J / h^d < 1e-10
 /// (a flat element to round-off; common practice for mesh checks).
-const DEGENERATE_RELATIVE_DET: f64 = 1e-10;
+pub const DEGENERATE_RELATIVE_DET: f64 = 1e-10;
 
 /// Checks every element and returns the bad ones (empty when all are valid), in file order.
 pub fn check_geometry(mesh: &Mesh) -> Vec<BadElement> {
@@ -50,7 +50,7 @@ pub fn check_geometry(mesh: &Mesh) -> Vec<BadElement> {
                     for rule in rules {
                         let table = kind.table(rule);
                         for k in 0..table.len() {
-                            let det = jacobian_det(dim, &coords[..nn], table.dn_at(k));
+                            let det = jacobian_determinant(dim, &coords[..nn], table.dn_at(k));
                             let rel = det / scale;
                             if rel.is_nan() || rel < worst {
                                 worst = rel;
@@ -77,26 +77,6 @@ pub fn check_geometry(mesh: &Mesh) -> Vec<BadElement> {
         .collect();
     bad.sort_by_key(|b| b.file_cell);
     bad
-}
-
-/// det J at one point from the nodal coordinates and reference gradients (2D: the x-y block).
-#[inline]
-pub(crate) fn jacobian_det(dim: usize, coords: &[[f64; 3]], dn_ref: &[[f64; 3]]) -> f64 {
-    let mut j = [[0.0; 3]; 3];
-    for (x, g) in coords.iter().zip(dn_ref) {
-        for a in 0..3 {
-            for b in 0..3 {
-                j[a][b] += g[a] * x[b];
-            }
-        }
-    }
-    if dim == 2 {
-        j[0][0] * j[1][1] - j[0][1] * j[1][0]
-    } else {
-        j[0][0] * (j[1][1] * j[2][2] - j[1][2] * j[2][1])
-            - j[0][1] * (j[1][0] * j[2][2] - j[1][2] * j[2][0])
-            + j[0][2] * (j[1][0] * j[2][1] - j[1][1] * j[2][0])
-    }
 }
 
 /// Largest distance between two corners: a size scale for relative geometry tolerances.

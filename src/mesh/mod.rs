@@ -11,7 +11,9 @@ mod check;
 pub mod generate;
 
 pub use adjacency::{BoundaryFacets, NodeElements};
-pub use check::{check_geometry, orient_wedges, BadElement, BadElementKind};
+pub use check::{
+    check_geometry, orient_wedges, BadElement, BadElementKind, DEGENERATE_RELATIVE_DET,
+};
 
 use crate::element::ElementKind;
 

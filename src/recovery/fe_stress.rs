@@ -11,14 +11,10 @@
 //! passes that evaluate strains anyway do the check, so no separate pass is needed.
 
 use super::materials::ElementMaterials;
-use crate::element::{ElementKind, ShapeTable, TableRule, MAX_NODES};
+use crate::element::{invert_jacobian, ElementKind, ShapeTable, TableRule, MAX_NODES};
 use crate::material::{AnalysisMode, SymTensor};
-use crate::mesh::{BadElement, BadElementKind, Model};
+use crate::mesh::{BadElement, BadElementKind, Model, DEGENERATE_RELATIVE_DET};
 use rayon::prelude::*;
-
-/// Relative determinant below which an element counts as collapsed: det J / h^d < 1e-10
-/// (flat to round-off; common practice for mesh checks).
-pub const DEGENERATE_RELATIVE_DET: f64 = 1e-10;
 
 /// Strain, physical position and det J at one point.
 pub type PointStrain = (SymTensor, [f64; 3], f64);
@@ -67,44 +63,8 @@ fn affine_simplex(
             j[r][c] = rows[r + 1][c] - rows[0][c];
         }
     }
-    if d == 2 {
-        let det = j[0][0] * j[1][1] - j[0][1] * j[1][0];
-        let i = 1.0 / det;
-        Some((
-            [
-                [j[1][1] * i, -j[0][1] * i, 0.0],
-                [-j[1][0] * i, j[0][0] * i, 0.0],
-                [0.0; 3],
-            ],
-            det,
-        ))
-    } else {
-        let c00 = j[1][1] * j[2][2] - j[1][2] * j[2][1];
-        let c01 = j[1][2] * j[2][0] - j[1][0] * j[2][2];
-        let c02 = j[1][0] * j[2][1] - j[1][1] * j[2][0];
-        let det = j[0][0] * c00 + j[0][1] * c01 + j[0][2] * c02;
-        let i = 1.0 / det;
-        Some((
-            [
-                [
-                    c00 * i,
-                    (j[0][2] * j[2][1] - j[0][1] * j[2][2]) * i,
-                    (j[0][1] * j[1][2] - j[0][2] * j[1][1]) * i,
-                ],
-                [
-                    c01 * i,
-                    (j[0][0] * j[2][2] - j[0][2] * j[2][0]) * i,
-                    (j[0][2] * j[1][0] - j[0][0] * j[1][2]) * i,
-                ],
-                [
-                    c02 * i,
-                    (j[0][1] * j[2][0] - j[0][0] * j[2][1]) * i,
-                    (j[0][0] * j[1][1] - j[0][1] * j[1][0]) * i,
-                ],
-            ],
-            det,
-        ))
-    }
+    let (det, inv) = invert_jacobian(d, &j);
+    Some((inv, det))
 }
 
 impl ElementData {
@@ -251,46 +211,15 @@ impl ElementData {
                 }
             }
         }
-        let j = |r: usize, b: usize| acc[r][b];
-        let (det, inv) = if let Some((inv, det)) = affine {
-            (det, inv)
-        } else if D == 3 {
-            let c00 = j(1, 1) * j(2, 2) - j(1, 2) * j(2, 1);
-            let c01 = j(1, 2) * j(2, 0) - j(1, 0) * j(2, 2);
-            let c02 = j(1, 0) * j(2, 1) - j(1, 1) * j(2, 0);
-            let det = j(0, 0) * c00 + j(0, 1) * c01 + j(0, 2) * c02;
-            let i = 1.0 / det;
-            (
-                det,
-                [
-                    [
-                        c00 * i,
-                        (j(0, 2) * j(2, 1) - j(0, 1) * j(2, 2)) * i,
-                        (j(0, 1) * j(1, 2) - j(0, 2) * j(1, 1)) * i,
-                    ],
-                    [
-                        c01 * i,
-                        (j(0, 0) * j(2, 2) - j(0, 2) * j(2, 0)) * i,
-                        (j(0, 2) * j(1, 0) - j(0, 0) * j(1, 2)) * i,
-                    ],
-                    [
-                        c02 * i,
-                        (j(0, 1) * j(2, 0) - j(0, 0) * j(2, 1)) * i,
-                        (j(0, 0) * j(1, 1) - j(0, 1) * j(1, 0)) * i,
-                    ],
-                ],
-            )
-        } else {
-            let det = j(0, 0) * j(1, 1) - j(0, 1) * j(1, 0);
-            let i = 1.0 / det;
-            (
-                det,
-                [
-                    [j(1, 1) * i, -j(0, 1) * i, 0.0],
-                    [-j(1, 0) * i, j(0, 0) * i, 0.0],
-                    [0.0; 3],
-                ],
-            )
+        let (det, inv) = match affine {
+            Some((inv, det)) => (det, inv),
+            None => {
+                let mut j = [[0.0; 3]; 3];
+                for r in 0..D {
+                    j[r].copy_from_slice(&acc[r][..3]);
+                }
+                invert_jacobian(D, &j)
+            }
         };
         if det.is_nan() || det <= 0.0 {
             return Err(BadElementKind::Inverted);

@@ -10,9 +10,7 @@ mod materials;
 mod slots;
 mod spr;
 
-pub use fe_stress::{
-    sample_stresses, ElementData, PointStrain, SampledStresses, DEGENERATE_RELATIVE_DET,
-};
+pub use fe_stress::{sample_stresses, ElementData, PointStrain, SampledStresses};
 pub use least_squares::{evaluate as evaluate_patch, fit as fit_polynomial, Sample, MAX_TERMS};
 pub use materials::{ElementMaterials, MissingZoneMaterial};
 pub use slots::Slots;
