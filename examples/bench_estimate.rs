@@ -12,8 +12,8 @@
 
 use hone::element::ElementKind;
 use hone::io::{
-    build_model, read_results, write_vtu, ArrayData, ArrayView, Encoding, GridView, ModelOptions,
-    WriteOptions,
+    build_model, cells_in_file_order, read_results, write_vtu, ArrayData, ArrayView, Encoding,
+    GridView, ModelOptions, WriteOptions,
 };
 use hone::material::{AnalysisMode, Material, MaterialMap};
 use hone::mesh::generate::structured;
@@ -83,13 +83,8 @@ fn generate(path: &Path, kind: ElementKind, cells: usize, zlib: bool) {
             ]
         })
         .collect();
-    let mut connectivity = Vec::new();
-    let mut offsets = Vec::new();
-    for e in 0..mesh.element_count() {
-        connectivity.extend_from_slice(mesh.element(e).1);
-        offsets.push(connectivity.len() as u64);
-    }
-    let types = vec![kind.vtk_id(); mesh.element_count()];
+    let cells = cells_in_file_order(&mesh);
+    let (connectivity, offsets, types) = (cells.connectivity, cells.offsets, cells.types);
     let points = [ArrayView {
         name: "displacement",
         components: 3,

@@ -23,15 +23,8 @@ fn stderr(o: &Output) -> String {
 /// Writes a model as a VTU with a point array `disp_name` holding the displacement.
 fn write_model(path: &Path, model: &Model, disp_name: &str, encoding: Encoding) {
     let mesh = &model.mesh;
-    let mut connectivity = Vec::new();
-    let mut offsets = Vec::new();
-    let mut types = Vec::new();
-    for e in 0..mesh.element_count() {
-        let (kind, nodes) = mesh.element(e);
-        connectivity.extend_from_slice(nodes);
-        offsets.push(connectivity.len() as u64);
-        types.push(kind.vtk_id());
-    }
+    let cells = hone::io::cells_in_file_order(mesh);
+    let (connectivity, offsets, types) = (cells.connectivity, cells.offsets, cells.types);
     let disp: Vec<f64> = model.displacement.iter().flatten().copied().collect();
     let zone: Vec<i32> = (0..mesh.element_count())
         .map(|e| 1 + (e % 2) as i32)

@@ -2,7 +2,7 @@
 //! they had in the input file, with point and cell fields given in hone's element order.
 
 use super::{write_atomically, write_vtu, ArrayData, ArrayView, GridView, IoError, WriteOptions};
-use crate::mesh::Model;
+use crate::mesh::{Mesh, Model};
 use std::path::Path;
 
 /// Values of one output field.
@@ -25,6 +25,40 @@ pub struct Field<'a> {
     pub values: FieldValues<'a>,
 }
 
+/// A mesh's cells as VTK XML arrays, in the order they had in the input file.
+#[derive(Clone, Debug, Default)]
+pub struct CellArrays {
+    /// hone's element index of each written cell.
+    pub order: Vec<usize>,
+    /// Node ids of all cells, concatenated.
+    pub connectivity: Vec<u32>,
+    /// End offset of each cell in `connectivity`.
+    pub offsets: Vec<u64>,
+    /// VTK cell type of each cell.
+    pub types: Vec<u8>,
+}
+
+/// Lays out the cells of `mesh` for writing, sorted by their index in the input file.
+pub fn cells_in_file_order(mesh: &Mesh) -> CellArrays {
+    let mut order: Vec<usize> = (0..mesh.element_count()).collect();
+    order.sort_by_key(|&e| mesh.file_cell[e]);
+    let mut connectivity = Vec::new();
+    let mut offsets = Vec::with_capacity(order.len());
+    let mut types = Vec::with_capacity(order.len());
+    for &e in &order {
+        let (kind, nodes) = mesh.element(e);
+        connectivity.extend_from_slice(nodes);
+        offsets.push(connectivity.len() as u64);
+        types.push(kind.vtk_id());
+    }
+    CellArrays {
+        order,
+        connectivity,
+        offsets,
+        types,
+    }
+}
+
 /// Writes `model` with `point_fields` and `cell_fields` to `path` atomically, refusing to
 /// overwrite `protect` (the input file). Cells are written in input-file order and a cell field
 /// `file_cell` gives each cell's index in the input file.
@@ -37,17 +71,12 @@ pub fn write_model_vtu(
     options: &WriteOptions,
 ) -> Result<(), IoError> {
     let mesh = &model.mesh;
-    let mut order: Vec<usize> = (0..mesh.element_count()).collect();
-    order.sort_by_key(|&e| mesh.file_cell[e]);
-    let mut connectivity = Vec::new();
-    let mut offsets = Vec::with_capacity(order.len());
-    let mut types = Vec::with_capacity(order.len());
-    for &e in &order {
-        let (kind, nodes) = mesh.element(e);
-        connectivity.extend_from_slice(nodes);
-        offsets.push(connectivity.len() as u64);
-        types.push(kind.vtk_id());
-    }
+    let CellArrays {
+        order,
+        connectivity,
+        offsets,
+        types,
+    } = cells_in_file_order(mesh);
     let file_cell: Vec<i32> = order.iter().map(|&e| mesh.file_cell[e] as i32).collect();
     let displacement: Vec<f64> = model.displacement.iter().flatten().copied().collect();
     let mut reordered_f64: Vec<Vec<f64>> = Vec::new();

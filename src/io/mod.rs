@@ -53,5 +53,5 @@ pub use write::{write_vtu, ArrayData, ArrayView, Encoding, GridView, WriteOption
 
 mod annotated;
 mod model;
-pub use annotated::{write_model_vtu, Field, FieldValues};
+pub use annotated::{cells_in_file_order, write_model_vtu, CellArrays, Field, FieldValues};
 pub use model::{build_model, ModelError, ModelNotes, ModelOptions, USUAL_DISPLACEMENT_NAMES};

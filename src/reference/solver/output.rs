@@ -1,7 +1,8 @@
 //! Writing a solved model as a VTU that the estimate pipeline reads like any results file.
 
 use crate::io::{
-    write_atomically, write_vtu, ArrayData, ArrayView, Encoding, GridView, IoError, WriteOptions,
+    cells_in_file_order, write_atomically, write_vtu, ArrayData, ArrayView, CellArrays, Encoding,
+    GridView, IoError, WriteOptions,
 };
 use crate::mesh::Mesh;
 use std::path::Path;
@@ -27,17 +28,12 @@ pub fn write_results(
             mesh.node_count()
         )));
     }
-    let mut order: Vec<usize> = (0..mesh.element_count()).collect();
-    order.sort_by_key(|&e| mesh.file_cell[e]);
-    let mut connectivity = Vec::new();
-    let mut offsets = Vec::with_capacity(order.len());
-    let mut types = Vec::with_capacity(order.len());
-    for &e in &order {
-        let (kind, nodes) = mesh.element(e);
-        connectivity.extend_from_slice(nodes);
-        offsets.push(connectivity.len() as u64);
-        types.push(kind.vtk_id());
-    }
+    let CellArrays {
+        order,
+        connectivity,
+        offsets,
+        types,
+    } = cells_in_file_order(mesh);
     let values: Vec<f64> = displacement.iter().flatten().copied().collect();
     let point_data = [ArrayView {
         name: "displacement",
