@@ -91,6 +91,7 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
             .with_context(|| format!("writing {}", out.display()))?;
     }
     stages.finish();
+    let concentration = est.concentration(&[0.5, 0.9]);
     let report = EstimateReport {
         file: file.clone(),
         kinds: model
@@ -122,8 +123,8 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
         energy_norm: est.energy_norm,
         error_norm: est.error_norm,
         relative_error: est.relative_error,
-        elements_for_half: est.concentration(0.5),
-        elements_for_ninety: est.concentration(0.9),
+        elements_for_half: concentration[0],
+        elements_for_ninety: concentration[1],
         top_elements: est
             .top_elements(args.top)
             .into_iter()

@@ -63,22 +63,26 @@ impl Estimate {
         }
     }
 
-    /// Fewest elements whose error squared sums to at least `fraction` of the total.
-    pub fn concentration(&self, fraction: f64) -> usize {
-        let mut sorted = self.error_sq.clone();
-        sorted.par_sort_unstable_by(|a, b| b.total_cmp(a));
+    /// For each of `fractions` (ascending), the fewest elements whose error squared sums to at
+    /// least that fraction of the total; one sort serves all fractions.
+    pub fn concentration(&self, fractions: &[f64]) -> Vec<usize> {
         let total: f64 = self.error_sq.iter().sum();
         if total.is_nan() || total <= 0.0 {
-            return 0;
+            return vec![0; fractions.len()];
         }
+        let mut sorted = self.error_sq.clone();
+        sorted.par_sort_unstable_by(|a, b| b.total_cmp(a));
+        let mut out = Vec::with_capacity(fractions.len());
         let mut acc = 0.0;
-        for (i, v) in sorted.iter().enumerate() {
-            acc += v;
-            if acc >= fraction * total {
-                return i + 1;
+        let mut count = 0;
+        for &fraction in fractions {
+            while count < sorted.len() && acc < fraction * total {
+                acc += sorted[count];
+                count += 1;
             }
+            out.push(count);
         }
-        sorted.len()
+        out
     }
 
     /// The `k` elements with the largest error, largest first (ties: lower index first).
@@ -190,4 +194,24 @@ pub fn estimate(
         energy_sq,
         measure,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Errors squared 4, 1, 3, 2 (total 10): half needs the two largest (4 + 3 = 7 >= 5), 90 %
+    /// the three largest (9 >= 9) (definition of error concentration, glossary).
+    #[test]
+    fn concentration_counts_the_fewest_elements() {
+        let est = Estimate {
+            error_sq: vec![4.0, 1.0, 3.0, 2.0],
+            energy_sq: vec![1.0; 4],
+            measure: vec![1.0; 4],
+            error_norm: 10f64.sqrt(),
+            energy_norm: 2.0,
+            relative_error: 0.0,
+        };
+        assert_eq!(est.concentration(&[0.5, 0.9, 1.0]), vec![2, 3, 4]);
+    }
 }
