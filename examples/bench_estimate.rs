@@ -22,37 +22,9 @@ use hone::recovery::{recover, sample_stresses, ElementMaterials, RecoveryMethod}
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
-fn arg<T: std::str::FromStr>(args: &[String], name: &str) -> Option<T> {
-    args.iter()
-        .position(|a| a == name)
-        .and_then(|i| args.get(i + 1))
-        .and_then(|v| v.parse().ok())
-}
-
-fn peak_memory_mb() -> f64 {
-    std::fs::read_to_string("/proc/self/status")
-        .ok()
-        .and_then(|s| {
-            s.lines()
-                .find(|l| l.starts_with("VmHWM:"))
-                .and_then(|l| l.split_whitespace().nth(1))
-                .and_then(|kb| kb.parse::<f64>().ok())
-        })
-        .map_or(f64::NAN, |kb| kb / 1024.0)
-}
-
-/// User + system CPU seconds of this process so far (/proc/self/stat fields 14 and 15, in
-/// clock ticks of 1/100 s on Linux).
-fn cpu_seconds() -> f64 {
-    std::fs::read_to_string("/proc/self/stat")
-        .ok()
-        .and_then(|s| {
-            let rest = s.rsplit_once(')')?.1;
-            let f: Vec<&str> = rest.split_whitespace().collect();
-            Some((f.get(11)?.parse::<f64>().ok()? + f.get(12)?.parse::<f64>().ok()?) / 100.0)
-        })
-        .unwrap_or(f64::NAN)
-}
+#[path = "support/mod.rs"]
+mod support;
+use support::{arg, cpu_seconds, peak_memory_mb};
 
 fn cells_per_cell(kind: ElementKind) -> usize {
     match kind {

@@ -24,24 +24,9 @@ use hone::reference::solver::{
 use std::sync::Arc;
 use std::time::Instant;
 
-fn arg<T: std::str::FromStr>(args: &[String], name: &str) -> Option<T> {
-    args.iter()
-        .position(|a| a == name)
-        .and_then(|i| args.get(i + 1))
-        .and_then(|v| v.parse().ok())
-}
-
-fn peak_memory_mb() -> f64 {
-    std::fs::read_to_string("/proc/self/status")
-        .ok()
-        .and_then(|s| {
-            s.lines()
-                .find(|l| l.starts_with("VmHWM:"))
-                .and_then(|l| l.split_whitespace().nth(1))
-                .and_then(|kb| kb.parse::<f64>().ok())
-        })
-        .map_or(f64::NAN, |kb| kb / 1024.0)
-}
+#[path = "support/mod.rs"]
+mod support;
+use support::{arg, peak_memory_mb};
 
 /// A structured mesh of `kind` on `[0, 4] x [0, 1]` (2D) or `[0, 2] x [0, 1] x [0, 1]` (3D) with
 /// cells in proportion, sized to about `dofs` degrees of freedom.
