@@ -17,8 +17,7 @@
 
 use super::meshes::{extrude, triangulate, Domain, Loop, MeshError, MesherOptions, Segment};
 use super::solver::{
-    select_facets, select_nodes, solve, BoundaryConditions, Constraint, SolveError, SolveOptions,
-    TractionLoad,
+    fix_component, select_facets, solve, BoundaryConditions, SolveError, SolveOptions, TractionLoad,
 };
 use crate::element::ElementKind;
 use crate::material::{AnalysisMode, Material, MaterialMap};
@@ -130,28 +129,10 @@ pub fn solve_plate(mesh: &Mesh) -> Result<Model, DemoError> {
     let three_d = mesh.dimension == 3;
     let tol = 1e-6;
     let mut constraints = Vec::new();
-    for node in select_nodes(mesh, |p| p[0].abs() < tol) {
-        constraints.push(Constraint {
-            node,
-            component: 0,
-            value: 0.0,
-        });
-    }
-    for node in select_nodes(mesh, |p| p[1].abs() < tol) {
-        constraints.push(Constraint {
-            node,
-            component: 1,
-            value: 0.0,
-        });
-    }
+    constraints.extend(fix_component(mesh, 0, |p| p[0].abs() < tol));
+    constraints.extend(fix_component(mesh, 1, |p| p[1].abs() < tol));
     if three_d {
-        for node in select_nodes(mesh, |p| p[2].abs() < tol) {
-            constraints.push(Constraint {
-                node,
-                component: 2,
-                value: 0.0,
-            });
-        }
+        constraints.extend(fix_component(mesh, 2, |p| p[2].abs() < tol));
     }
     let load = TractionLoad {
         facets: select_facets(mesh, |f| f.iter().all(|p| (p[0] - PANEL[0]).abs() < tol)),

@@ -20,7 +20,7 @@ use super::{exact_traction, ExactStress, Problem, ON_BOUNDARY};
 use crate::element::ElementKind;
 use crate::material::{AnalysisMode, Material, MaterialMap};
 use crate::reference::meshes::plate_with_hole;
-use crate::reference::solver::{select_nodes, BoundaryConditions, Constraint};
+use crate::reference::solver::{fix_component, BoundaryConditions};
 use std::sync::Arc;
 
 /// Hole radius, plate half-width, remote stress, E, nu (method sheet 5.1 check values use these).
@@ -84,20 +84,8 @@ pub fn kirsch(kind: ElementKind, n: usize) -> Problem {
     let exact_stress: ExactStress = Arc::new(|p| kirsch_stress(p[0], p[1]));
     let tol = ON_BOUNDARY * L;
     let mut constraints = Vec::new();
-    for node in select_nodes(&mesh, |p| p[0].abs() < tol) {
-        constraints.push(Constraint {
-            node,
-            component: 0,
-            value: 0.0,
-        });
-    }
-    for node in select_nodes(&mesh, |p| p[1].abs() < tol) {
-        constraints.push(Constraint {
-            node,
-            component: 1,
-            value: 0.0,
-        });
-    }
+    constraints.extend(fix_component(&mesh, 0, |p| p[0].abs() < tol));
+    constraints.extend(fix_component(&mesh, 1, |p| p[1].abs() < tol));
     let tractions = vec![
         exact_traction(&mesh, &exact_stress, |f| {
             f.iter().all(|p| (p[0] - L).abs() < tol)

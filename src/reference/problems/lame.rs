@@ -21,7 +21,7 @@ use crate::element::ElementKind;
 use crate::material::{AnalysisMode, Material, MaterialMap};
 use crate::mesh::generate::{map_points, structured};
 use crate::reference::meshes::quarter_annulus;
-use crate::reference::solver::{select_nodes, BoundaryConditions, Constraint};
+use crate::reference::solver::{fix_component, BoundaryConditions, Constraint};
 use std::sync::Arc;
 
 /// Inner radius, outer radius, pressure, E, nu (method sheet 5.4 check values).
@@ -86,28 +86,12 @@ fn inner(p: &[f64; 3]) -> bool {
 fn symmetry(mesh: &crate::mesh::Mesh, ends: bool) -> Vec<Constraint> {
     let tol = ON_BOUNDARY * B_OUT;
     let mut c = Vec::new();
-    for node in select_nodes(mesh, |p| p[0].abs() < tol) {
-        c.push(Constraint {
-            node,
-            component: 0,
-            value: 0.0,
-        });
-    }
-    for node in select_nodes(mesh, |p| p[1].abs() < tol) {
-        c.push(Constraint {
-            node,
-            component: 1,
-            value: 0.0,
-        });
-    }
+    c.extend(fix_component(mesh, 0, |p| p[0].abs() < tol));
+    c.extend(fix_component(mesh, 1, |p| p[1].abs() < tol));
     if ends {
-        for node in select_nodes(mesh, |p| p[2].abs() < tol || (p[2] - LENGTH).abs() < tol) {
-            c.push(Constraint {
-                node,
-                component: 2,
-                value: 0.0,
-            });
-        }
+        c.extend(fix_component(mesh, 2, |p| {
+            p[2].abs() < tol || (p[2] - LENGTH).abs() < tol
+        }));
     }
     c
 }
@@ -142,13 +126,9 @@ pub fn lame_axisymmetric(kind: ElementKind, n: usize) -> Problem {
     map_points(&mut mesh, |p| [p[0] + A_IN, p[1], 0.0]);
     let tol = ON_BOUNDARY * B_OUT;
     let mut constraints = Vec::new();
-    for node in select_nodes(&mesh, |p| p[1].abs() < tol || (p[1] - LENGTH).abs() < tol) {
-        constraints.push(Constraint {
-            node,
-            component: 1,
-            value: 0.0,
-        });
-    }
+    constraints.extend(fix_component(&mesh, 1, |p| {
+        p[1].abs() < tol || (p[1] - LENGTH).abs() < tol
+    }));
     // (r, z, theta) in the (xx, yy, zz) slots.
     let exact_stress: ExactStress = Arc::new(|p: [f64; 3]| {
         let (sr, st, sz) = lame_stresses(p[0]);

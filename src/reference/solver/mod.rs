@@ -41,7 +41,7 @@ pub use exact::{exact_errors, try_exact_errors, ExactErrors};
 pub use gauss::{gauss_legendre, reference_rule};
 pub use loads::{facet_shape, FacetShape};
 pub use output::write_results;
-pub use select::{boundary_facets, select_facets, select_nodes};
+pub use select::{boundary_facets, fix_component, select_facets, select_nodes};
 pub use solve::{solve, solve_timed};
 
 use crate::material::MaterialError;

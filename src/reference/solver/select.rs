@@ -1,5 +1,6 @@
 //! Picking facets and nodes by position, to define supports and loads in code.
 
+use super::Constraint;
 use crate::element::MAX_NODES;
 use crate::mesh::{Mesh, NodeElements};
 use rayon::prelude::*;
@@ -71,5 +72,22 @@ pub fn select_nodes(mesh: &Mesh, keep: impl Fn([f64; 3]) -> bool) -> Vec<u32> {
     (0..mesh.node_count())
         .filter(|&n| used[n] && keep(mesh.points[n]))
         .map(|n| n as u32)
+        .collect()
+}
+
+/// Zero-displacement supports: component `component` fixed to 0 at every node used by elements
+/// whose position satisfies `keep` (symmetry planes, clamped faces).
+pub fn fix_component(
+    mesh: &Mesh,
+    component: usize,
+    keep: impl Fn([f64; 3]) -> bool,
+) -> Vec<Constraint> {
+    select_nodes(mesh, keep)
+        .into_iter()
+        .map(|node| Constraint {
+            node,
+            component,
+            value: 0.0,
+        })
         .collect()
 }
