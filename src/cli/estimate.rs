@@ -30,22 +30,7 @@ fn compute(
 
 /// Mean length of the element's vertex-to-vertex edges (the glossary's `size_now`).
 pub fn size_now(model: &Model) -> Vec<f64> {
-    let mesh = &model.mesh;
-    (0..mesh.element_count())
-        .map(|e| {
-            let (kind, nodes) = mesh.element(e);
-            let edges = kind.edges();
-            let sum: f64 = edges
-                .iter()
-                .map(|[a, b]| {
-                    let p = mesh.points[nodes[*a] as usize];
-                    let q = mesh.points[nodes[*b] as usize];
-                    ((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2) + (p[2] - q[2]).powi(2)).sqrt()
-                })
-                .sum();
-            sum / edges.len() as f64
-        })
-        .collect()
+    model.mesh.size_now()
 }
 
 pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcome> {

@@ -211,6 +211,33 @@ impl ElementKind {
         self.info().reference_nodes
     }
 
+    /// The linear kind of the same family (tri3, quad4, tet4, hex8, wedge6): the corners of
+    /// this kind, in the same order, interpolated linearly. Size fields live on the corners.
+    pub fn linear(self) -> ElementKind {
+        match self.info().family {
+            Family::Triangle => ElementKind::Tri3,
+            Family::Quadrilateral => ElementKind::Quad4,
+            Family::Tetrahedron => ElementKind::Tet4,
+            Family::Hexahedron => ElementKind::Hex8,
+            Family::Wedge => ElementKind::Wedge6,
+        }
+    }
+
+    /// Area or volume of a well-shaped element of this family with every edge of length `h`:
+    /// equilateral triangle `sqrt(3)/4 h^2`, square `h^2`, regular tetrahedron
+    /// `h^3 / (6 sqrt(2))`, cube `h^3`, right prism on an equilateral triangle `sqrt(3)/4 h^3`
+    /// (elementary geometry). A mesher asked for edge length h fills a region of measure V with
+    /// about `V / regular_measure(h)` elements.
+    pub fn regular_measure(self, h: f64) -> f64 {
+        match self.info().family {
+            Family::Triangle => 3f64.sqrt() / 4.0 * h * h,
+            Family::Quadrilateral => h * h,
+            Family::Tetrahedron => h * h * h / (6.0 * 2f64.sqrt()),
+            Family::Hexahedron => h * h * h,
+            Family::Wedge => 3f64.sqrt() / 4.0 * h * h * h,
+        }
+    }
+
     /// Area (2D) or volume (3D) of the reference element: 1/2 for the unit triangle, 4 for
     /// [-1,1]^2, 1/6 for the unit tetrahedron, 8 for [-1,1]^3, 1 for the unit triangle x [-1,1].
     pub fn reference_measure(self) -> f64 {

@@ -125,6 +125,46 @@ impl Mesh {
         (lo, hi)
     }
 
+    /// Current size of every element (the glossary's `size_now`): the mean length of its
+    /// vertex-to-vertex edges. Mid-side nodes do not count, so a straight quadratic element has
+    /// the size of its linear counterpart.
+    pub fn size_now(&self) -> Vec<f64> {
+        use rayon::prelude::*;
+        (0..self.element_count())
+            .into_par_iter()
+            .map(|e| {
+                let (kind, nodes) = self.element(e);
+                let edges = kind.edges();
+                let sum: f64 = edges
+                    .iter()
+                    .map(|[a, b]| distance(&self.points[nodes[*a] as usize], &self.points[nodes[*b] as usize]))
+                    .sum();
+                sum / edges.len() as f64
+            })
+            .collect()
+    }
+
+    /// Every vertex-to-vertex edge of the mesh once, as (smaller node, larger node), sorted.
+    /// Mid-side nodes are not vertices; the size field and its gradation live on these edges.
+    pub fn vertex_edges(&self) -> Vec<(u32, u32)> {
+        use rayon::prelude::*;
+        let mut edges: Vec<(u32, u32)> = Vec::new();
+        for b in &self.blocks {
+            let list = b.kind.edges();
+            edges.reserve(b.len() * list.len());
+            for c in 0..b.len() {
+                let nodes = b.cell(c);
+                for [i, j] in list {
+                    let (a, z) = (nodes[*i], nodes[*j]);
+                    edges.push((a.min(z), a.max(z)));
+                }
+            }
+        }
+        edges.par_sort_unstable();
+        edges.dedup();
+        edges
+    }
+
     /// Copies a node's coordinates into `out` for the nodes of one element.
     #[inline]
     pub fn gather_coords(&self, nodes: &[u32], out: &mut [[f64; 3]]) {
@@ -132,6 +172,12 @@ impl Mesh {
             *o = self.points[n as usize];
         }
     }
+}
+
+/// Euclidean distance between two points.
+#[inline]
+pub fn distance(a: &[f64; 3], b: &[f64; 3]) -> f64 {
+    ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt()
 }
 
 /// A mesh with its nodal displacement field: the input of every later stage.

@@ -9,6 +9,7 @@ use std::cmp::Ordering;
 use std::collections::BinaryHeap;
 
 use super::{check_values, PlanError};
+use crate::mesh::distance;
 
 /// Heap entry ordered so that `BinaryHeap` pops the smallest size first, ties by the lower
 /// node index (deterministic order).
@@ -39,11 +40,6 @@ impl Ord for Entry {
             .total_cmp(&self.size)
             .then(other.node.cmp(&self.node))
     }
-}
-
-/// Euclidean distance `|x_a - x_b|`.
-fn distance(a: &[f64; 3], b: &[f64; 3]) -> f64 {
-    ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt()
 }
 
 /// Limits the growth of the nodal sizes along mesh edges to `g` per unit length (Persson 2006,

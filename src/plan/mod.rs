@@ -1,8 +1,9 @@
-//! Pure mathematics of the refinement plan: what size each element of the next mesh should have,
+//! The refinement plan: what size each element of the next mesh should have,
 //! how many elements that costs, which elements to mark, how strong a corner singularity is and
 //! how fast the size field may grow between neighbours.
 //!
-//! Everything here works on plain slices; reading results and writing plans live elsewhere.
+//! The laws work on plain slices; the field and the planner add the mesh. Reading results and
+//! writing plan files live elsewhere.
 //!
 //! Model behind the size laws (method sheet 3): the error in the region of old element i scales
 //! as `||e||_i s_i^q_i` with `s_i = h_new,i / h_i`, and the region holds about `s_i^-d` new
@@ -16,11 +17,15 @@
 //!   fraction (sheet 3.6).
 //! - [`williams`]: smallest Williams exponent of a traction-free corner (sheet 4.1).
 //! - [`clamped`]: smallest exponent of a clamped-free corner (sheet 4.2).
+//! - [`field`]: the nodal size field and the element count a mesher will make from it.
+//! - [`planner`]: goals, limits and strategies put together into one [`Plan`].
 //! - [`gradation`]: Persson's discrete gradient limiting of a nodal size field (sheet 3.7).
 
 pub mod clamped;
+pub mod field;
 pub mod gradation;
 pub mod marking;
+pub mod planner;
 pub mod size_law;
 pub mod williams;
 
@@ -29,6 +34,7 @@ pub use clamped::{
 };
 pub use gradation::limit_gradation;
 pub use marking::{dorfler, fraction, maximum};
+pub use planner::{plan, Plan, PlanInput, PlanSettings, Strategy};
 pub use size_law::{
     classic_sizes, optimal_budget, optimal_sizes, optimal_sizes_mixed, ClassicPlan, OptimalPlan,
 };
