@@ -29,6 +29,8 @@ pub enum Command {
     Inspect(InspectArgs),
     /// Recover stresses (SPR) and estimate the energy-norm discretisation error per element.
     Estimate(EstimateArgs),
+    /// Estimate, then plan the next mesh: marks, target size field, predicted cost, singular spots.
+    Plan(PlanArgs),
     /// Build, solve and estimate the shipped demo scenario (a deck plate with a hatch opening).
     Demo(DemoArgs),
 }
@@ -111,4 +113,51 @@ pub struct EstimateArgs {
     /// How many of the largest element errors to list.
     #[arg(long, default_value_t = 10, value_name = "N")]
     pub top: usize,
+}
+
+/// `hone plan FILE`.
+#[derive(Debug, Args)]
+pub struct PlanArgs {
+    /// Results file (.vtu, .pvtu or .msh) with a displacement point array.
+    pub file: PathBuf,
+    /// Material and mode.
+    #[command(flatten)]
+    pub model: ModelArgs,
+    /// Stress recovery method.
+    #[arg(long, value_enum, default_value = "spr")]
+    pub recovery: RecoveryArg,
+    /// Global relative error to aim for, in percent of the energy norm (default 5).
+    #[arg(long, value_name = "PERCENT")]
+    pub target_error: Option<f64>,
+    /// Largest number of DOFs the next mesh may have.
+    #[arg(long, value_name = "N")]
+    pub max_dofs: Option<f64>,
+    /// optimal (fewest elements for the goal), or a marking strategy that halves the size of
+    /// the marked elements: dorfler THETA, maximum THETA, fraction F.
+    #[arg(long, num_args = 1..=2, value_names = ["NAME", "VALUE"], default_value = "optimal")]
+    pub strategy: Vec<String>,
+    /// Never plan a size above the current one.
+    #[arg(long)]
+    pub refine_only: bool,
+    /// Smallest target size anywhere.
+    #[arg(long, value_name = "H")]
+    pub size_min: Option<f64>,
+    /// Largest target size anywhere.
+    #[arg(long, value_name = "H")]
+    pub size_max: Option<f64>,
+    /// Size gradation: sizes grow by at most G per unit length between nodes (default 0.3).
+    #[arg(long, value_name = "G")]
+    pub grading: Option<f64>,
+    /// One plan refines an element at most this many times (default 8).
+    #[arg(long, value_name = "FACTOR")]
+    pub max_refine_factor: Option<f64>,
+    /// One plan coarsens an element at most this many times (default 4).
+    #[arg(long, value_name = "FACTOR")]
+    pub max_coarsen_factor: Option<f64>,
+    /// Smallest size at a singular spot (default 1e-4 of the bounding-box diagonal).
+    #[arg(long, value_name = "H")]
+    pub singular_floor: Option<f64>,
+    /// Folder for the plan files (default: next to the input, named after it with ".plan").
+    #[arg(long, value_name = "DIR")]
+    pub out_dir: Option<PathBuf>,
 }

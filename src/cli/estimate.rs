@@ -33,28 +33,71 @@ pub fn size_now(model: &Model) -> Vec<f64> {
     model.mesh.size_now()
 }
 
-pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcome> {
-    let file = args.file.display().to_string();
-    let stages = Stages::new(6 + u64::from(args.out.is_some()), quiet || json);
+/// A results file read, checked and estimated: what `estimate` and `plan` both start from.
+pub(super) struct Loaded {
+    pub model: Model,
+    pub notes: crate::io::ModelNotes,
+    pub mode: AnalysisMode,
+    pub map: MaterialMap,
+    pub method: RecoveryMethod,
+    pub computed: Computed,
+    /// Warnings about the input (cells left out).
+    pub warnings: Vec<String>,
+}
+
+/// Reads `path`, builds the model, checks the mode and materials, and runs the estimate.
+pub(super) fn load(
+    path: &std::path::Path,
+    model_args: &super::args::ModelArgs,
+    recovery: RecoveryArg,
+    stages: &Stages,
+) -> Result<Loaded> {
+    let file = path.display().to_string();
     stages.stage("reading");
-    let raw = read_results(&args.file)?;
-    let (model, notes) = build_model(&raw, &file, &model_options(&args.model))?;
+    let raw = read_results(path)?;
+    let (model, notes) = build_model(&raw, &file, &model_options(model_args))?;
     drop(raw);
-    let mode = analysis_mode(&args.model, model.mesh.dimension, &file)?;
-    let map = materials(&args.model)?;
-    let method = match args.recovery {
+    let mode = analysis_mode(model_args, model.mesh.dimension, &file)?;
+    let map = materials(model_args)?;
+    let method = match recovery {
         RecoveryArg::Spr => RecoveryMethod::Spr,
         RecoveryArg::Average => RecoveryMethod::Average,
     };
-    let computed = compute(&model, &map, mode, method, &file, &stages)?;
+    let computed = compute(&model, &map, mode, method, &file, stages)?;
+    let warnings = notes
+        .skipped
+        .iter()
+        .map(|(vtk, count)| {
+            format!(
+                "{count} cells of type {} (VTK {vtk}) were left out (--skip-unsupported)",
+                crate::element::vtk_cell_type_name(*vtk)
+            )
+        })
+        .collect();
+    Ok(Loaded {
+        model,
+        notes,
+        mode,
+        map,
+        method,
+        computed,
+        warnings,
+    })
+}
+
+pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcome> {
+    let file = args.file.display().to_string();
+    let stages = Stages::new(6 + u64::from(args.out.is_some()), quiet || json);
+    let Loaded {
+        model,
+        notes,
+        mode,
+        map,
+        method,
+        computed,
+        mut warnings,
+    } = load(&args.file, &args.model, args.recovery, &stages)?;
     let est = &computed.estimate;
-    let mut warnings = Vec::new();
-    for (vtk, count) in &notes.skipped {
-        warnings.push(format!(
-            "{count} cells of type {} (VTK {vtk}) were left out (--skip-unsupported)",
-            crate::element::vtk_cell_type_name(*vtk)
-        ));
-    }
     if est.energy_norm.is_nan() || est.energy_norm <= 0.0 {
         warnings
             .push("the displacement field carries no strain energy: nothing to estimate".into());
@@ -72,7 +115,7 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
     }
     if let Some(out) = &args.out {
         stages.stage("writing annotated VTU");
-        write_annotated(out, &args.file, &model, &computed, args.ascii)
+        write_annotated(out, &args.file, &model, &computed, args.ascii, &[], &[])
             .with_context(|| format!("writing {}", out.display()))?;
     }
     stages.finish();
@@ -146,13 +189,16 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
     })
 }
 
-/// Writes the annotated VTU with the fields the estimate knows.
+/// Writes the annotated VTU with the fields the estimate knows, plus `extra_points` and
+/// `extra_cells` (the plan adds its fields this way).
 pub fn write_annotated(
     out: &std::path::Path,
     input: &std::path::Path,
     model: &Model,
     computed: &Computed,
     ascii: bool,
+    extra_points: &[Field],
+    extra_cells: &[Field],
 ) -> Result<()> {
     let est = &computed.estimate;
     let n = model.mesh.element_count();
@@ -171,45 +217,27 @@ pub fn write_annotated(
         },
         ..WriteOptions::default()
     };
-    write_model_vtu(
-        out,
-        Some(input),
-        model,
-        &[
-            Field {
-                name: "stress_recovered",
-                components: 6,
-                values: FieldValues::F64(&stress),
-            },
-            Field {
-                name: "von_mises_recovered",
-                components: 1,
-                values: FieldValues::F64(&vm),
-            },
-        ],
-        &[
-            Field {
-                name: "error_energy",
-                components: 1,
-                values: FieldValues::F64(&error_energy),
-            },
-            Field {
-                name: "error_share",
-                components: 1,
-                values: FieldValues::F64(&error_share),
-            },
-            Field {
-                name: "error_density",
-                components: 1,
-                values: FieldValues::F64(&error_density),
-            },
-            Field {
-                name: "size_now",
-                components: 1,
-                values: FieldValues::F64(&sizes),
-            },
-        ],
-        &options,
-    )?;
+    let one = |name, values| Field {
+        name,
+        components: 1,
+        values: FieldValues::F64(values),
+    };
+    let mut points = vec![
+        Field {
+            name: "stress_recovered",
+            components: 6,
+            values: FieldValues::F64(&stress),
+        },
+        one("von_mises_recovered", &vm),
+    ];
+    points.extend_from_slice(extra_points);
+    let mut cells = vec![
+        one("error_energy", &error_energy),
+        one("error_share", &error_share),
+        one("error_density", &error_density),
+        one("size_now", &sizes),
+    ];
+    cells.extend_from_slice(extra_cells);
+    write_model_vtu(out, Some(input), model, &points, &cells, &options)?;
     Ok(())
 }

@@ -8,6 +8,7 @@ mod estimate;
 pub use estimate::{size_now, write_annotated};
 mod inspect;
 mod model_options;
+mod plan;
 mod progress;
 
 use anyhow::Result;
@@ -63,6 +64,7 @@ pub fn run(cli: Cli) -> Result<Outcome> {
     match cli.command {
         Command::Inspect(a) => inspect::run(&a, cli.json),
         Command::Estimate(a) => estimate::run(&a, cli.json, cli.quiet),
+        Command::Plan(a) => plan::run(&a, cli.json, cli.quiet),
         Command::Demo(a) => demo::run(&a),
     }
 }

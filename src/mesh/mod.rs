@@ -137,7 +137,12 @@ impl Mesh {
                 let edges = kind.edges();
                 let sum: f64 = edges
                     .iter()
-                    .map(|[a, b]| distance(&self.points[nodes[*a] as usize], &self.points[nodes[*b] as usize]))
+                    .map(|[a, b]| {
+                        distance(
+                            &self.points[nodes[*a] as usize],
+                            &self.points[nodes[*b] as usize],
+                        )
+                    })
                     .sum();
                 sum / edges.len() as f64
             })

@@ -387,16 +387,18 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
                     .collect()
             };
             let goal = target * target * reference_sq;
-            let ln_mu = groups
-                .solve(goal, ExponentGroups::error_sq, false)
-                .ok_or(PlanError::NoBracket {
+            let ln_mu = groups.solve(goal, ExponentGroups::error_sq, false).ok_or(
+                PlanError::NoBracket {
                     target: goal.sqrt(),
-                })?;
+                },
+            )?;
             let realised = realise(&ratio_at(ln_mu))?;
             match settings.max_dofs {
-                Some(budget) if dofs_of(realised.elements) > budget => {
-                    (fit_budget(&groups, budget, &dofs_of, &ratio_at, &realise)?, true, None)
-                }
+                Some(budget) if dofs_of(realised.elements) > budget => (
+                    fit_budget(&groups, budget, &dofs_of, &ratio_at, &realise)?,
+                    true,
+                    None,
+                ),
                 _ => (realised, false, None),
             }
         }
@@ -406,10 +408,7 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
                 Strategy::Maximum(_) => maximum(&norms(input.error_sq), theta)?,
                 _ => fraction(&norms(input.error_sq), theta)?,
             };
-            let ratio: Vec<f64> = marked
-                .iter()
-                .map(|&m| if m { 0.5 } else { 1.0 })
-                .collect();
+            let ratio: Vec<f64> = marked.iter().map(|&m| if m { 0.5 } else { 1.0 }).collect();
             (realise(&ratio)?, false, Some(marked))
         }
     };

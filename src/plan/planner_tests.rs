@@ -111,9 +111,14 @@ fn budget_round_trip() {
     let by_budget = plan(&case.input(1.0), &budget).unwrap();
     assert!(by_budget.budget_limited);
     assert!(by_budget.predicted_dofs <= by_error.predicted_dofs * (1.0 + 1e-9));
-    let rel = (by_budget.achievable_error - by_error.achievable_error).abs()
-        / by_error.achievable_error;
-    assert!(rel < 0.02, "{} vs {}", by_budget.achievable_error, by_error.achievable_error);
+    let rel =
+        (by_budget.achievable_error - by_error.achievable_error).abs() / by_error.achievable_error;
+    assert!(
+        rel < 0.02,
+        "{} vs {}",
+        by_budget.achievable_error,
+        by_error.achievable_error
+    );
 }
 
 /// The final field obeys the gradation rule on every vertex edge and never exceeds the

@@ -1,6 +1,6 @@
 //! The `estimate` summary.
 
-use super::{number, thousands, CAUTIONS};
+use super::{number, thousands, write_footer, CAUTIONS};
 use serde_json::{json, Value};
 use std::io::{self, Write};
 
@@ -145,20 +145,7 @@ impl EstimateReport {
                 100.0 * t.error_share
             )?;
         }
-        if !self.warnings.is_empty() || !self.notes.is_empty() {
-            writeln!(w)?;
-            for note in &self.notes {
-                writeln!(w, "  note: {note}")?;
-            }
-            for warning in &self.warnings {
-                writeln!(w, "  warning: {warning}")?;
-            }
-        }
-        writeln!(w)?;
-        for line in CAUTIONS.lines() {
-            writeln!(w, "  {line}")?;
-        }
-        Ok(())
+        write_footer(w, &self.notes, &self.warnings)
     }
 
     /// The JSON object for `--json`.

@@ -2,8 +2,11 @@
 //! into memory. Every report carries the cautions.
 
 mod estimate_report;
+pub mod plan_files;
+mod plan_report;
 
 pub use estimate_report::{EstimateReport, TopElement};
+pub use plan_report::{PlanReport, SpotLine};
 
 /// The cautions every report and the README state.
 pub const CAUTIONS: &str = "\
@@ -11,6 +14,28 @@ This estimate covers discretisation error only, not modelling, material or load 
 Stresses at singular points (sharp re-entrant corners, point loads, point supports) are not
 physical: they grow without limit under refinement. Use these results to guide mesh design;
 design decisions follow the applicable codes and a licensed engineer's review.";
+
+/// Writes the notes, the warnings and the cautions that end every text report.
+pub(crate) fn write_footer(
+    w: &mut impl std::io::Write,
+    notes: &[String],
+    warnings: &[String],
+) -> std::io::Result<()> {
+    if !warnings.is_empty() || !notes.is_empty() {
+        writeln!(w)?;
+        for note in notes {
+            writeln!(w, "  note: {note}")?;
+        }
+        for warning in warnings {
+            writeln!(w, "  warning: {warning}")?;
+        }
+    }
+    writeln!(w)?;
+    for line in CAUTIONS.lines() {
+        writeln!(w, "  {line}")?;
+    }
+    Ok(())
+}
 
 /// Formats a count with thousands separators: 1234567 -> "1,234,567".
 pub fn thousands(n: usize) -> String {

@@ -1,0 +1,330 @@
+//! `hone plan`: estimate, screen for singular spots, plan the next mesh, write the plan files.
+
+use super::args::PlanArgs;
+use super::estimate::{load, write_annotated, Loaded};
+use super::progress::Stages;
+use super::Outcome;
+use crate::io::{cells_in_file_order, write_atomically, Field, FieldValues};
+use crate::mesh::Model;
+use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
+use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv, ElementRows};
+use crate::report::{PlanReport, SpotLine};
+use anyhow::{bail, Context, Result};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// Parses `--strategy NAME [VALUE]` with the defaults of each strategy.
+fn strategy(words: &[String]) -> Result<Strategy> {
+    let value = |default: f64| -> Result<f64> {
+        match words.get(1) {
+            None => Ok(default),
+            Some(v) => v
+                .parse::<f64>()
+                .with_context(|| format!("--strategy {}: '{v}' is not a number", words[0])),
+        }
+    };
+    let s = match words.first().map(String::as_str) {
+        None | Some("optimal") => {
+            if words.len() > 1 {
+                bail!("--strategy optimal takes no value, found '{}'", words[1]);
+            }
+            Strategy::Optimal
+        }
+        Some("dorfler") => Strategy::Dorfler(value(0.5)?),
+        Some("maximum") => Strategy::Maximum(value(0.5)?),
+        Some("fraction") => Strategy::Fraction(value(0.1)?),
+        Some(other) => {
+            bail!("--strategy '{other}': expected optimal, dorfler THETA, maximum THETA or fraction F")
+        }
+    };
+    Ok(s)
+}
+
+/// The strategy in words for the summary.
+fn describe_strategy(s: &Strategy, settings: &PlanSettings) -> String {
+    let limits = format!(
+        "grading {}, at most {}x finer and {}x coarser per plan{}",
+        settings.grading,
+        1.0 / settings.step_limits.0,
+        settings.step_limits.1,
+        if settings.refine_only {
+            ", refine only"
+        } else {
+            ""
+        }
+    );
+    match s {
+        Strategy::Optimal => format!("optimal sizes (fewest elements for the goal); {limits}"),
+        Strategy::Dorfler(t) => {
+            format!("Dorfler marking, theta {t}, marked elements halved; {limits}")
+        }
+        Strategy::Maximum(t) => {
+            format!("maximum marking, theta {t}, marked elements halved; {limits}")
+        }
+        Strategy::Fraction(f) => {
+            format!(
+                "largest {} % of indicators marked, halved; {limits}",
+                100.0 * f
+            )
+        }
+    }
+}
+
+/// Default output folder: next to the input, `NAME.plan` for `NAME.vtu`.
+fn default_out_dir(input: &Path) -> PathBuf {
+    let stem = input
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "results".into());
+    input.with_file_name(format!("{stem}.plan"))
+}
+
+/// Settings from the flags, checked.
+fn settings(args: &PlanArgs) -> Result<PlanSettings> {
+    let mut s = PlanSettings {
+        strategy: strategy(&args.strategy)?,
+        refine_only: args.refine_only,
+        size_min: args.size_min,
+        size_max: args.size_max,
+        singular_floor: args.singular_floor,
+        max_dofs: args.max_dofs,
+        ..PlanSettings::default()
+    };
+    if let Some(t) = args.target_error {
+        if !(t > 0.0 && t < 100.0) {
+            bail!("--target-error {t}: expected a percentage between 0 and 100");
+        }
+        s.target_error = Some(t / 100.0);
+    }
+    if let Some(g) = args.grading {
+        s.grading = g;
+    }
+    if let Some(f) = args.max_refine_factor {
+        if !(f >= 1.0 && f.is_finite()) {
+            bail!("--max-refine-factor {f}: expected a number >= 1");
+        }
+        s.step_limits.0 = 1.0 / f;
+    }
+    if let Some(f) = args.max_coarsen_factor {
+        s.step_limits.1 = f;
+    }
+    for (flag, v) in [
+        ("--size-min", args.size_min),
+        ("--size-max", args.size_max),
+        ("--singular-floor", args.singular_floor),
+    ] {
+        if let Some(v) = v {
+            if !(v > 0.0 && v.is_finite()) {
+                bail!("{flag} {v}: expected a positive size");
+            }
+        }
+    }
+    Ok(s)
+}
+
+pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
+    let file = args.file.display().to_string();
+    let settings = settings(args)?;
+    let stages = Stages::new(9, quiet || json);
+    let Loaded {
+        model,
+        mode,
+        computed,
+        mut warnings,
+        ..
+    } = load(&args.file, &args.model, args.recovery, &stages)?;
+    let est = &computed.estimate;
+    if est.error_norm.is_nan() || est.error_norm <= 0.0 {
+        bail!("{file}: the estimated error is zero everywhere (no strain energy or an exact field): there is nothing to plan");
+    }
+
+    stages.stage("planning sizes");
+    let mesh = &model.mesh;
+    let n = mesh.element_count();
+    let size_now = mesh.size_now();
+    let exponents: Vec<f64> = (0..n).map(|e| mesh.element(e).0.order() as f64).collect();
+    let singular = vec![false; n];
+    let spots: Vec<SpotLine> = Vec::new();
+    let total_energy: f64 = est.energy_sq.iter().sum();
+    let input = PlanInput {
+        mesh,
+        error_sq: &est.error_sq,
+        energy_sq: total_energy,
+        exponents: &exponents,
+        singular: &singular,
+        size_now: &size_now,
+        dofs_per_node: mesh.dimension,
+    };
+    let the_plan = plan(&input, &settings).with_context(|| format!("planning {file}"))?;
+    if the_plan.budget_limited && the_plan.achievable_error > the_plan.target_error {
+        warnings.push(format!(
+            "the target {:.2} % needs more than {} DOFs; the budget buys about {:.2} %",
+            100.0 * the_plan.target_error,
+            settings.max_dofs.unwrap_or(0.0),
+            100.0 * the_plan.achievable_error
+        ));
+    } else if the_plan.achievable_error > 1.05 * the_plan.target_error {
+        warnings.push(format!(
+            "the per-plan limits keep this step from reaching {:.2} % (predicted {:.2} %); plan again after the next solve",
+            100.0 * the_plan.target_error,
+            100.0 * the_plan.achievable_error
+        ));
+    }
+
+    let out_dir = args
+        .out_dir
+        .clone()
+        .unwrap_or_else(|| default_out_dir(&args.file));
+    std::fs::create_dir_all(&out_dir)
+        .with_context(|| format!("creating the output folder {}", out_dir.display()))?;
+    let singular_zone: Vec<i32> = singular.iter().map(|&s| i32::from(s)).collect();
+    let mut report = PlanReport {
+        file: file.clone(),
+        elements: n,
+        nodes: mesh.node_count(),
+        kinds: mesh
+            .kind_counts()
+            .into_iter()
+            .map(|(k, c)| (k.name(), c))
+            .collect(),
+        dimension: mesh.dimension,
+        mode: mode.name(),
+        strategy: describe_strategy(&settings.strategy, &settings),
+        relative_error: est.relative_error,
+        target_error: the_plan.target_error,
+        target_is_default: args.target_error.is_none(),
+        max_dofs: settings.max_dofs,
+        budget_limited: the_plan.budget_limited,
+        achievable_error: the_plan.achievable_error,
+        predicted_elements: the_plan.predicted_elements,
+        predicted_nodes: the_plan.predicted_nodes,
+        predicted_dofs: the_plan.predicted_dofs,
+        current_dofs: the_plan.current_dofs,
+        marks: the_plan.mark_counts(),
+        size_range: the_plan
+            .nodal_size
+            .iter()
+            .fold((f64::INFINITY, 0.0_f64), |(lo, hi), &h| {
+                (lo.min(h), hi.max(h))
+            }),
+        spots,
+        files: Vec::new(),
+        warnings,
+        notes: Vec::new(),
+    };
+    let files = plan_file_names(&out_dir);
+    report.files = files.iter().map(|p| p.display().to_string()).collect();
+    let summary = report.to_json();
+
+    stages.stage("writing plan files");
+    write_plan_files(
+        &files,
+        &args.file,
+        &model,
+        &the_plan,
+        est,
+        &size_now,
+        &singular_zone,
+        &summary,
+    )?;
+    stages.stage("writing annotated VTU");
+    write_annotated(
+        &files[3],
+        &args.file,
+        &model,
+        &computed,
+        false,
+        &[Field {
+            name: "size_target",
+            components: 1,
+            values: FieldValues::F64(&the_plan.nodal_size),
+        }],
+        &[
+            Field {
+                name: "size_target",
+                components: 1,
+                values: FieldValues::F64(&the_plan.size_target),
+            },
+            Field {
+                name: "refine_mark",
+                components: 1,
+                values: FieldValues::I32(
+                    &the_plan
+                        .refine_mark
+                        .iter()
+                        .map(|&m| i32::from(m))
+                        .collect::<Vec<_>>(),
+                ),
+            },
+            Field {
+                name: "singular_zone",
+                components: 1,
+                values: FieldValues::I32(&singular_zone),
+            },
+        ],
+    )
+    .with_context(|| format!("writing {}", files[3].display()))?;
+    stages.finish();
+
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    if json {
+        serde_json::to_writer_pretty(&mut out, &summary)?;
+        writeln!(out)?;
+    } else {
+        report.write_text(&mut out)?;
+    }
+    Ok(if report.warnings.is_empty() {
+        Outcome::Ok
+    } else {
+        Outcome::Warnings
+    })
+}
+
+/// plan.json, plan.csv, sizes.csv, plan.vtu in `dir`.
+fn plan_file_names(dir: &Path) -> Vec<PathBuf> {
+    ["plan.json", "plan.csv", "sizes.csv", "plan.vtu"]
+        .iter()
+        .map(|n| dir.join(n))
+        .collect()
+}
+
+/// Writes plan.json, plan.csv and sizes.csv atomically.
+#[allow(clippy::too_many_arguments)]
+fn write_plan_files(
+    files: &[PathBuf],
+    input: &Path,
+    model: &Model,
+    the_plan: &Plan,
+    est: &crate::estimate::Estimate,
+    size_now: &[f64],
+    singular_zone: &[i32],
+    summary: &serde_json::Value,
+) -> Result<()> {
+    let mesh = &model.mesh;
+    let n = mesh.element_count();
+    let order = cells_in_file_order(mesh).order;
+    let error_energy: Vec<f64> = (0..n).map(|e| est.error_energy(e)).collect();
+    let error_share: Vec<f64> = (0..n).map(|e| est.error_share(e)).collect();
+    let rows = ElementRows {
+        order: &order,
+        id: &mesh.file_cell,
+        error_energy: &error_energy,
+        error_share: &error_share,
+        refine_mark: &the_plan.refine_mark,
+        size_now,
+        size_target: &the_plan.size_target,
+        singular_zone,
+    };
+    write_atomically(&files[0], Some(input), |w| {
+        write_plan_json(w, summary, &rows)
+    })
+    .with_context(|| format!("writing {}", files[0].display()))?;
+    write_atomically(&files[1], Some(input), |w| write_plan_csv(w, &rows))
+        .with_context(|| format!("writing {}", files[1].display()))?;
+    write_atomically(&files[2], Some(input), |w| {
+        write_sizes_csv(w, &mesh.points, &the_plan.nodal_size)
+    })
+    .with_context(|| format!("writing {}", files[2].display()))?;
+    Ok(())
+}

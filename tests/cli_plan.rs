@@ -1,0 +1,188 @@
+//! End-to-end runs of `hone plan` on reference-solver results.
+
+mod common;
+
+use common::scratch;
+use hone::element::ElementKind;
+use hone::reference::problems::kirsch;
+use hone::reference::solver::write_results;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn hone(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_hone"))
+        .args(args)
+        .output()
+        .expect("binary runs")
+}
+
+/// A solved quarter plate with a hole (Kirsch problem) as a results file.
+fn kirsch_file(dir: &Path) -> PathBuf {
+    let solved = kirsch(ElementKind::Tri6, 4).solve().expect("solves");
+    let path = dir.join("plate.vtu");
+    write_results(&path, &solved.model.mesh, &solved.model.displacement, false).expect("writes");
+    path
+}
+
+fn plate_args<'a>(file: &'a str, extra: &[&'a str]) -> Vec<&'a str> {
+    let mut v = vec![
+        "plan",
+        file,
+        "--youngs",
+        "200000",
+        "--poisson",
+        "0.3",
+        "--plane-stress",
+    ];
+    v.extend_from_slice(extra);
+    v
+}
+
+#[test]
+fn plan_json_summary_and_files() {
+    let dir = scratch("plan_json");
+    let file = kirsch_file(&dir);
+    let out_dir = dir.join("out");
+    let f = file.to_str().unwrap();
+    let o = hone(&plate_args(
+        f,
+        &[
+            "--target-error",
+            "1",
+            "--json",
+            "--out-dir",
+            out_dir.to_str().unwrap(),
+        ],
+    ));
+    assert!(
+        o.status.code().unwrap() < 2,
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("one JSON object");
+    for key in [
+        "relative_error",
+        "target_error",
+        "achievable_error",
+        "predicted_elements",
+        "predicted_nodes",
+        "predicted_dofs",
+        "current_dofs",
+        "marked_elements",
+        "singular_points",
+    ] {
+        assert!(v.get(key).is_some(), "missing key {key}");
+    }
+    assert_eq!(v["target_error"].as_f64(), Some(0.01));
+    // Aiming below the current error costs more DOFs than the current mesh has.
+    let eta = v["relative_error"].as_f64().unwrap();
+    assert!(eta > 0.01, "the coarse plate already has {eta}");
+    assert!(v["predicted_dofs"].as_f64().unwrap() > v["current_dofs"].as_f64().unwrap());
+    assert!(v["marked_elements"].as_u64().unwrap() > 0);
+
+    // plan.json: the same summary plus one row per element with the documented keys.
+    let text = std::fs::read_to_string(out_dir.join("plan.json")).unwrap();
+    let plan: serde_json::Value = serde_json::from_str(&text).unwrap();
+    assert_eq!(plan["summary"]["predicted_dofs"], v["predicted_dofs"]);
+    let rows = plan["elements"].as_array().unwrap();
+    assert_eq!(rows.len() as u64, v["current_elements"].as_u64().unwrap());
+    for key in [
+        "id",
+        "error_energy",
+        "error_share",
+        "refine_mark",
+        "size_now",
+        "size_target",
+        "singular_zone",
+    ] {
+        assert!(rows[0].get(key).is_some(), "row lacks {key}");
+    }
+    let share: f64 = rows
+        .iter()
+        .map(|r| r["error_share"].as_f64().unwrap())
+        .sum();
+    assert!((share - 1.0).abs() < 1e-12, "shares sum to {share}");
+
+    // plan.csv and sizes.csv: one line per element / node plus the header.
+    let csv = std::fs::read_to_string(out_dir.join("plan.csv")).unwrap();
+    assert_eq!(csv.lines().count(), rows.len() + 1);
+    let sizes = std::fs::read_to_string(out_dir.join("sizes.csv")).unwrap();
+    let back = hone::io::read_vtu(&out_dir.join("plan.vtu")).expect("annotated VTU reads");
+    assert_eq!(sizes.lines().count(), back.points.len() + 1);
+    for name in [
+        "error_energy",
+        "error_share",
+        "error_density",
+        "size_now",
+        "size_target",
+        "refine_mark",
+        "singular_zone",
+        "file_cell",
+    ] {
+        assert!(back.cell_array(name).is_some(), "no cell array {name}");
+    }
+    for name in ["stress_recovered", "von_mises_recovered", "size_target"] {
+        assert!(back.point_array(name).is_some(), "no point array {name}");
+    }
+    // The nodal sizes in sizes.csv are the VTU's point field, in the same order.
+    let field = &back.point_array("size_target").unwrap().values;
+    for (line, h) in sizes.lines().skip(1).zip(field) {
+        let v: f64 = line.rsplit(',').next().unwrap().parse().unwrap();
+        assert_eq!(v, *h);
+    }
+}
+
+#[test]
+fn budget_and_text_summary() {
+    let dir = scratch("plan_budget");
+    let file = kirsch_file(&dir);
+    let f = file.to_str().unwrap();
+    let o = hone(&plate_args(
+        f,
+        &[
+            "--target-error",
+            "0.1",
+            "--max-dofs",
+            "3000",
+            "--json",
+            "--quiet",
+        ],
+    ));
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON");
+    assert_eq!(v["budget_limited"], true);
+    assert!(v["predicted_dofs"].as_f64().unwrap() <= 3000.0);
+    assert!(v["achievable_error"].as_f64().unwrap() > 0.001);
+    // The default folder sits next to the input; the text names every number the issue asks.
+    let o = hone(&plate_args(f, &["--strategy", "dorfler", "0.5"]));
+    let text = String::from_utf8_lossy(&o.stdout);
+    for phrase in [
+        "global relative error",
+        "target error",
+        "achievable error",
+        "next mesh (predicted)",
+        "refined",
+        "Dorfler",
+        "discretisation error only",
+    ] {
+        assert!(text.contains(phrase), "summary lacks '{phrase}':\n{text}");
+    }
+    assert!(dir.join("plate.plan").join("plan.json").exists());
+}
+
+#[test]
+fn bad_plan_options_are_clear_errors() {
+    let dir = scratch("plan_bad");
+    let file = kirsch_file(&dir);
+    let f = file.to_str().unwrap();
+    for (extra, phrase) in [
+        (vec!["--target-error", "0"], "--target-error"),
+        (vec!["--strategy", "everywhere"], "--strategy"),
+        (vec!["--strategy", "dorfler", "x"], "not a number"),
+        (vec!["--size-min=-1"], "--size-min"),
+    ] {
+        let o = hone(&plate_args(f, &extra));
+        assert_eq!(o.status.code(), Some(2), "{extra:?}");
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(err.contains(phrase), "{extra:?}: {err}");
+    }
+}
