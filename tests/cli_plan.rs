@@ -186,3 +186,70 @@ fn bad_plan_options_are_clear_errors() {
         assert!(err.contains(phrase), "{extra:?}: {err}");
     }
 }
+
+/// The L-shape's re-entrant corner is found, sized with its Williams exponent and flagged in
+/// plan.json. lambda = 0.5444837368 for 270 degrees (Williams 1952; methods sheet 4.1).
+#[test]
+fn l_shape_corner_is_a_singular_point() {
+    let dir = scratch("plan_lshape");
+    let solved = hone::reference::problems::l_shape(ElementKind::Tri6, 4)
+        .solve()
+        .expect("solves");
+    let path = dir.join("lshape.vtu");
+    write_results(&path, &solved.model.mesh, &solved.model.displacement, false).expect("writes");
+    let out_dir = dir.join("out");
+    let o = hone(&[
+        "plan",
+        path.to_str().unwrap(),
+        "--youngs",
+        "1",
+        "--poisson",
+        "0.3",
+        "--plane-strain",
+        "--target-error",
+        "2",
+        "--json",
+        "--out-dir",
+        out_dir.to_str().unwrap(),
+    ]);
+    assert!(
+        o.status.code().unwrap() < 2,
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON");
+    let spots = v["singular_points"].as_array().unwrap();
+    let corners: Vec<&serde_json::Value> = spots
+        .iter()
+        .filter(|s| s["kind"] == "reentrant_corner")
+        .collect();
+    assert_eq!(corners.len(), 1, "{spots:?}");
+    let c = corners[0];
+    assert!((c["lambda"].as_f64().unwrap() - 0.5444837368).abs() < 1e-9);
+    assert!((c["angle_deg"].as_f64().unwrap() - 270.0).abs() < 1e-9);
+    let loc = c["location"].as_array().unwrap();
+    assert!(loc[0].as_f64().unwrap().abs() < 1e-12 && loc[1].as_f64().unwrap().abs() < 1e-12);
+    let plan: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out_dir.join("plan.json")).unwrap()).unwrap();
+    let flagged = plan["elements"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|r| r["singular_zone"] == 1)
+        .count();
+    assert!(flagged > 0 && flagged < 10, "{flagged} elements flagged");
+
+    let o = hone(&[
+        "plan",
+        path.to_str().unwrap(),
+        "--youngs",
+        "1",
+        "--poisson",
+        "0.3",
+        "--plane-strain",
+        "--singular",
+        "1,x",
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("--singular"));
+}

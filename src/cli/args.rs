@@ -157,6 +157,10 @@ pub struct PlanArgs {
     /// Smallest size at a singular spot (default 1e-4 of the bounding-box diagonal).
     #[arg(long, value_name = "H")]
     pub singular_floor: Option<f64>,
+    /// A singular point the screening cannot see (a point load or point support, say), as
+    /// X,Y or X,Y,Z; repeat for more points.
+    #[arg(long, value_name = "X,Y[,Z]")]
+    pub singular: Vec<String>,
     /// Folder for the plan files (default: next to the input, named after it with ".plan").
     #[arg(long, value_name = "DIR")]
     pub out_dir: Option<PathBuf>,

@@ -9,6 +9,7 @@ use crate::mesh::Model;
 use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
 use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv, ElementRows};
 use crate::report::{PlanReport, SpotLine};
+use crate::singular::{screen, PoissonRatio, ScreeningOptions};
 use anyhow::{bail, Context, Result};
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -70,6 +71,23 @@ fn describe_strategy(s: &Strategy, settings: &PlanSettings) -> String {
     }
 }
 
+/// Parses `X,Y` or `X,Y,Z` (z = 0 when left out).
+fn parse_point(text: &str) -> Result<[f64; 3]> {
+    let parts: Vec<&str> = text.split(',').map(str::trim).collect();
+    if !(2..=3).contains(&parts.len()) {
+        bail!("--singular '{text}': expected X,Y or X,Y,Z");
+    }
+    let mut p = [0.0; 3];
+    for (slot, part) in p.iter_mut().zip(&parts) {
+        *slot = part
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .with_context(|| format!("--singular '{text}': '{part}' is not a number"))?;
+    }
+    Ok(p)
+}
+
 /// Default output folder: next to the input, `NAME.plan` for `NAME.vtu`.
 fn default_out_dir(input: &Path) -> PathBuf {
     let stem = input
@@ -125,10 +143,16 @@ fn settings(args: &PlanArgs) -> Result<PlanSettings> {
 pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let file = args.file.display().to_string();
     let settings = settings(args)?;
-    let stages = Stages::new(9, quiet || json);
+    let stages = Stages::new(10, quiet || json);
+    let user_points = args
+        .singular
+        .iter()
+        .map(|text| parse_point(text))
+        .collect::<Result<Vec<_>>>()?;
     let Loaded {
         model,
         mode,
+        map,
         computed,
         mut warnings,
         ..
@@ -142,9 +166,34 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let mesh = &model.mesh;
     let n = mesh.element_count();
     let size_now = mesh.size_now();
-    let exponents: Vec<f64> = (0..n).map(|e| mesh.element(e).0.order() as f64).collect();
-    let singular = vec![false; n];
-    let spots: Vec<SpotLine> = Vec::new();
+    stages.stage("screening for singular spots");
+    let mut options = ScreeningOptions::new(mode, PoissonRatio::from_materials(&map));
+    options.user_points = user_points;
+    let screening = screen(&model, &options).with_context(|| format!("screening {file}"))?;
+    let mut exponents: Vec<f64> = (0..n).map(|e| mesh.element(e).0.order() as f64).collect();
+    let mut singular = vec![false; n];
+    let mut flagged = vec![0usize; screening.spots.len()];
+    for (e, spot) in screening.element_spot.iter().enumerate() {
+        if let Some(s) = spot {
+            let s = *s as usize;
+            singular[e] = true;
+            flagged[s] += 1;
+            exponents[e] = exponents[e].min(screening.spots[s].lambda);
+        }
+    }
+    let spots: Vec<SpotLine> = screening
+        .spots
+        .iter()
+        .zip(&flagged)
+        .map(|(s, &elements)| SpotLine {
+            kind: s.kind.as_str().to_string(),
+            location: s.location,
+            angle_deg: s.angle_deg,
+            lambda: s.lambda,
+            elements,
+            sentence: s.sentence(),
+        })
+        .collect();
     let total_energy: f64 = est.energy_sq.iter().sum();
     let input = PlanInput {
         mesh,

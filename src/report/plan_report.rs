@@ -73,12 +73,6 @@ pub struct PlanReport {
     pub notes: Vec<String>,
 }
 
-/// Formats a point with 5 significant digits, 2 or 3 coordinates.
-fn point(p: &[f64; 3], dimension: usize) -> String {
-    let parts: Vec<String> = p[..dimension].iter().map(|v| number(*v, 5)).collect();
-    format!("({})", parts.join(", "))
-}
-
 impl PlanReport {
     /// Writes the text summary.
     pub fn write_text(&self, w: &mut impl Write) -> io::Result<()> {
@@ -162,16 +156,13 @@ impl PlanReport {
         } else {
             writeln!(w, "  singular spots         {}", self.spots.len())?;
             for s in &self.spots {
+                writeln!(w, "    - {}", s.sentence)?;
                 writeln!(
                     w,
-                    "    {} at {}: angle {:.1} deg, lambda {:.4}, {} elements sized with lambda",
-                    s.kind.replace('_', " "),
-                    point(&s.location, self.dimension),
-                    s.angle_deg,
-                    s.lambda,
-                    thousands(s.elements)
+                    "      {} elements around it are sized with lambda {:.4}.",
+                    thousands(s.elements),
+                    s.lambda
                 )?;
-                writeln!(w, "      {}", s.sentence)?;
             }
         }
         if !self.files.is_empty() {
