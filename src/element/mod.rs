@@ -25,7 +25,7 @@ mod vtk_names;
 mod wedge;
 
 #[cfg(test)]
-mod tests;
+pub(crate) mod tests;
 
 pub use geometry::{
     interpolate_point, inverse_map, invert_jacobian, jacobian_determinant, map_gradients,

@@ -9,11 +9,13 @@
 mod adjacency;
 mod check;
 pub mod generate;
+pub mod locate;
 
 pub use adjacency::{BoundaryFacets, NodeElements};
 pub use check::{
     check_geometry, orient_wedges, BadElement, BadElementKind, DEGENERATE_RELATIVE_DET,
 };
+pub use locate::Locator;
 
 use crate::element::ElementKind;
 

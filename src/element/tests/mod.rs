@@ -10,7 +10,7 @@ use super::{ElementKind, Family, MAX_NODES};
 
 /// SplitMix64 (Steele, Lea & Flood 2014): a tiny reproducible generator, so no test depends on
 /// a random-number crate or on the run.
-pub(super) struct Rng(u64);
+pub(crate) struct Rng(u64);
 
 impl Rng {
     pub fn new(seed: u64) -> Rng {
@@ -99,7 +99,7 @@ pub(super) fn gradients(kind: ElementKind, xi: [f64; 3]) -> [[f64; 3]; MAX_NODES
 
 /// Asserts `|actual - expected| <= rel * scale`, rejecting NaN first, and prints both sides.
 #[track_caller]
-pub(super) fn assert_close(actual: f64, expected: f64, rel: f64, scale: f64, what: &str) {
+pub(crate) fn assert_close(actual: f64, expected: f64, rel: f64, scale: f64, what: &str) {
     assert!(
         actual.is_finite(),
         "{what}: got non-finite {actual}, expected {expected}"
