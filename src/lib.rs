@@ -19,3 +19,4 @@ pub mod plan;
 pub mod recovery;
 pub mod reference;
 pub mod report;
+pub mod study;
