@@ -2,8 +2,12 @@
 //! into memory. Every report carries the cautions.
 
 mod estimate_report;
+mod study_plot;
+mod study_report;
 
 pub use estimate_report::{EstimateReport, TopElement};
+pub use study_plot::write_study_svg;
+pub use study_report::{StudyReport, NO_LIMIT};
 
 /// The cautions every report and the README state.
 pub const CAUTIONS: &str = "\
