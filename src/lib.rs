@@ -20,3 +20,4 @@ pub mod recovery;
 pub mod reference;
 pub mod report;
 pub mod singular;
+pub mod study;

@@ -4,9 +4,9 @@
 //! (Strang & Fix 1973, ch. 3; method sheet 4.3, from memory for the theorem). Slopes over the
 //! two finest levels must be within 10 % of the prediction (issue acceptance band).
 
+mod common;
+
 use hone::element::ElementKind;
-use hone::estimate::estimate_model;
-use hone::recovery::RecoveryMethod;
 use hone::reference::problems::{self, Problem, WILLIAMS_LAMBDA_270};
 
 /// Builds a problem for a kind and level.
@@ -62,16 +62,8 @@ fn l_shape_converges_at_the_singular_rate() {
 fn kirsch_peak_stress_tends_to_three() {
     let mut errors = Vec::new();
     for n in [4, 8, 16] {
-        let problem = problems::kirsch(ElementKind::Quad8, n);
-        let solved = problem.solve().expect("solves");
-        let computed = estimate_model(
-            &solved.model,
-            &problem.materials,
-            problem.mode,
-            RecoveryMethod::Spr,
-            &|_| {},
-        )
-        .expect("estimate");
+        let (solved, computed) =
+            common::solve_and_estimate(&problems::kirsch(ElementKind::Quad8, n));
         let mesh = &solved.model.mesh;
         let node = (0..mesh.node_count())
             .find(|&i| mesh.points[i][0].abs() < 1e-9 && (mesh.points[i][1] - 1.0).abs() < 1e-9)

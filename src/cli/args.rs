@@ -31,6 +31,8 @@ pub enum Command {
     Estimate(EstimateArgs),
     /// Estimate, then plan the next mesh: marks, target size field, predicted cost, singular spots.
     Plan(PlanArgs),
+    /// Convergence study over results of the same part on successively finer meshes.
+    Study(StudyArgs),
     /// Build, solve and estimate the shipped demo scenario (a deck plate with a hatch opening).
     Demo(DemoArgs),
 }
@@ -164,4 +166,35 @@ pub struct PlanArgs {
     /// Folder for the plan files (default: next to the input, named after it with ".plan").
     #[arg(long, value_name = "DIR")]
     pub out_dir: Option<PathBuf>,
+}
+
+/// `hone study FILE FILE [FILE...]`.
+#[derive(Debug, Args)]
+pub struct StudyArgs {
+    /// Results files of the same part on successively finer meshes, in any order (sorted by
+    /// degrees of freedom).
+    #[arg(required = true, num_args = 2.., value_name = "FILE")]
+    pub files: Vec<PathBuf>,
+    /// Material and mode (the same for every mesh).
+    #[command(flatten)]
+    pub model: ModelArgs,
+    /// A value to follow besides strain energy, estimated error and peak von Mises (repeat
+    /// for more). Syntax: [max:|min:|mean:]FIELD@PLACE with FIELD one of ux uy uz sxx syy szz
+    /// sxy syz sxz von_mises and PLACE a point x,y[,z], box(x0,y0,x1,y1) or
+    /// box(x0,y0,z0,x1,y1,z1), sphere(x,y,r) or sphere(x,y,z,r). Points interpolate in the
+    /// element holding them; regions reduce the nodes inside (max by default, mean weighted by
+    /// volume). Examples: "ux@10,20", "max:von_mises@box(0,0,5,5)", "mean:syy@sphere(3,4,0.5)".
+    #[arg(long = "probe", value_name = "PROBE")]
+    pub probes: Vec<String>,
+    /// Relative change between the finest two meshes below which a value counts as converged,
+    /// in percent.
+    #[arg(long, default_value_t = 1.0, value_name = "PERCENT")]
+    pub tolerance: f64,
+    /// SVG plot of the changes and of the estimated error against DOFs (default: study.svg
+    /// next to the first input).
+    #[arg(long, value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+    /// Write no plot.
+    #[arg(long, conflicts_with = "plot")]
+    pub no_plot: bool,
 }

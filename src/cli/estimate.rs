@@ -13,7 +13,6 @@ use crate::mesh::Model;
 use crate::recovery::RecoveryMethod;
 use crate::report::{EstimateReport, TopElement};
 use anyhow::{anyhow, Context, Result};
-use std::io::Write;
 
 /// Runs the estimate stage with progress display; errors name the file.
 fn compute(
@@ -174,19 +173,12 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
             Vec::new()
         },
     };
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
-    if json {
-        serde_json::to_writer_pretty(&mut out, &report.to_json())?;
-        writeln!(out)?;
-    } else {
-        report.write_text(&mut out)?;
-    }
-    Ok(if report.warnings.is_empty() {
-        Outcome::Ok
-    } else {
-        Outcome::Warnings
-    })
+    super::print_report(
+        json,
+        || report.to_json(),
+        |mut w| report.write_text(&mut w),
+        !report.warnings.is_empty(),
+    )
 }
 
 /// Writes the annotated VTU with the fields the estimate knows, plus `extra_points` and

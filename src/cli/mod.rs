@@ -10,10 +10,35 @@ mod inspect;
 mod model_options;
 mod plan;
 mod progress;
+mod study;
+
+/// Prints a report on stdout as pretty JSON (`--json`) or text; the outcome is `Warnings` when
+/// the report has any.
+fn print_report(
+    json: bool,
+    to_json: impl FnOnce() -> serde_json::Value,
+    write_text: impl FnOnce(&mut dyn std::io::Write) -> std::io::Result<()>,
+    has_warnings: bool,
+) -> Result<Outcome> {
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    if json {
+        serde_json::to_writer_pretty(&mut out, &to_json())?;
+        writeln!(out)?;
+    } else {
+        write_text(&mut out)?;
+    }
+    Ok(if has_warnings {
+        Outcome::Warnings
+    } else {
+        Outcome::Ok
+    })
+}
 
 use anyhow::Result;
 use args::{Cli, Command};
 use clap::Parser;
+use std::io::Write as _;
 use std::process::ExitCode;
 
 /// How a command finished.
@@ -65,6 +90,7 @@ pub fn run(cli: Cli) -> Result<Outcome> {
         Command::Inspect(a) => inspect::run(&a, cli.json),
         Command::Estimate(a) => estimate::run(&a, cli.json, cli.quiet),
         Command::Plan(a) => plan::run(&a, cli.json, cli.quiet),
+        Command::Study(a) => study::run(&a, cli.json, cli.quiet),
         Command::Demo(a) => demo::run(&a),
     }
 }

@@ -11,7 +11,6 @@ use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv
 use crate::report::{PlanReport, SpotLine};
 use crate::singular::{screen, PoissonRatio, ScreeningOptions};
 use anyhow::{bail, Context, Result};
-use std::io::Write;
 use std::path::{Path, PathBuf};
 
 /// Parses `--strategy NAME [VALUE]` with the defaults of each strategy.
@@ -315,19 +314,12 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     .with_context(|| format!("writing {}", files[3].display()))?;
     stages.finish();
 
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
-    if json {
-        serde_json::to_writer_pretty(&mut out, &summary)?;
-        writeln!(out)?;
-    } else {
-        report.write_text(&mut out)?;
-    }
-    Ok(if report.warnings.is_empty() {
-        Outcome::Ok
-    } else {
-        Outcome::Warnings
-    })
+    super::print_report(
+        json,
+        || summary.clone(),
+        |mut w| report.write_text(&mut w),
+        !report.warnings.is_empty(),
+    )
 }
 
 /// plan.json, plan.csv, sizes.csv, plan.vtu in `dir`.

@@ -4,9 +4,13 @@
 mod estimate_report;
 pub mod plan_files;
 mod plan_report;
+mod study_plot;
+mod study_report;
 
 pub use estimate_report::{EstimateReport, TopElement};
 pub use plan_report::{PlanReport, SpotLine};
+pub use study_plot::write_study_svg;
+pub use study_report::{StudyReport, NO_LIMIT};
 
 /// The cautions every report and the README state.
 pub const CAUTIONS: &str = "\

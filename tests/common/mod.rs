@@ -7,6 +7,7 @@ use hone::material::{AnalysisMode, Material, MaterialMap};
 use hone::mesh::generate::{map_points, structured};
 use hone::mesh::{Mesh, Model};
 use hone::recovery::RecoveryMethod;
+use hone::reference::problems::{Problem, Solved};
 use std::path::PathBuf;
 
 /// Steel-like material used throughout the tests (any values would do).
@@ -78,4 +79,18 @@ pub fn scratch(name: &str) -> PathBuf {
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).expect("scratch folder");
     dir
+}
+
+/// Solves a reference problem and runs the estimate (SPR) on its result.
+pub fn solve_and_estimate(problem: &Problem) -> (Solved, Computed) {
+    let solved = problem.solve().expect("solves");
+    let computed = estimate_model(
+        &solved.model,
+        &problem.materials,
+        problem.mode,
+        RecoveryMethod::Spr,
+        &|_| {},
+    )
+    .expect("estimate");
+    (solved, computed)
 }
