@@ -14,8 +14,9 @@ use crate::reference::demo::{
     plate_mesh, solid_mesh, solve_plate, Corner, MATERIAL, OPENING, THICKNESS,
 };
 use crate::reference::solver::write_results;
-use crate::report::{number, thousands, CAUTIONS};
+use crate::report::{number, thousands};
 use anyhow::{bail, Context, Result};
+use clap::Parser;
 use std::path::{Path, PathBuf};
 
 /// Name of the file listing what the demo created in its folder.
@@ -112,17 +113,46 @@ fn near_corner(v: &Variant, radius: f64) -> (f64, usize, f64, [f64; 3]) {
     (share, count, peak, mesh.points[peak_node])
 }
 
+/// Far-field sizes of the study sequence (mm): each mesh halves the sizes of the previous one.
+const STUDY_SIZES: [(f64, &str); 3] = [(50.0, "_coarse"), (SIZE_2D, ""), (12.5, "_fine")];
+
+/// Runs one hone command line exactly as a user would type it (without the program name).
+fn run_command(words: &[String]) -> Result<Outcome> {
+    let cli = super::args::Cli::try_parse_from(
+        std::iter::once("hone".to_string()).chain(words.iter().cloned()),
+    )
+    .map_err(|e| anyhow::anyhow!("demo command {words:?}: {e}"))?;
+    super::run(cli)
+}
+
+/// The material and mode flags of the 2D demo files.
+fn plate_flags() -> Vec<String> {
+    [
+        "--youngs",
+        "206000",
+        "--poisson",
+        "0.3",
+        "--plane-stress",
+        "--thickness",
+        "8",
+        "--quiet",
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect()
+}
+
 pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {
     let dir = output_dir(&args.dir)?;
-    let names: Vec<String> = [Corner::Sharp, Corner::Rounded]
-        .iter()
-        .flat_map(|c| {
-            [
-                format!("deck_{}_tri6.vtu", c.name()),
-                format!("deck_{}_tet10.vtu", c.name()),
-            ]
-        })
-        .collect();
+    let mut names: Vec<String> = Vec::new();
+    for c in [Corner::Sharp, Corner::Rounded] {
+        for (_, suffix) in STUDY_SIZES {
+            names.push(format!("deck_{}_tri6{suffix}.vtu", c.name()));
+        }
+        names.push(format!("deck_{}_tet10.vtu", c.name()));
+        names.push(format!("deck_{}_tri6.plan", c.name()));
+        names.push(format!("study_{}.svg", c.name()));
+    }
     check_writable(&dir, &names)?;
     std::fs::write(dir.join(MARKER), names.join("\n") + "\n")
         .context("writing the demo's file list")?;
@@ -133,10 +163,12 @@ pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {
     let mut variants_2d = Vec::new();
     let mut variants_3d = Vec::new();
     for corner in [Corner::Sharp, Corner::Rounded] {
-        let mesh2d = plate_mesh(corner, SIZE_2D)?;
-        let solved = solve_plate(&mesh2d)?;
+        for (far, suffix) in STUDY_SIZES {
+            let solved = solve_plate(&plate_mesh(corner, far)?)?;
+            let file = dir.join(format!("deck_{}_tri6{suffix}.vtu", corner.name()));
+            write_results(&file, &solved.mesh, &solved.displacement, false)?;
+        }
         let file = dir.join(format!("deck_{}_tri6.vtu", corner.name()));
-        write_results(&file, &solved.mesh, &solved.displacement, false)?;
         let (model, computed) = estimate_file(
             &file,
             AnalysisMode::PlaneStress {
@@ -214,14 +246,55 @@ pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {
     println!(
         "  mesh is refined, and the error concentrates there. The rounded corner has a finite peak"
     );
-    println!("  that refinement converges. Estimate the files yourself, for example:");
-    println!(
-        "    hone estimate {} --youngs 206000 --poisson 0.3 --plane-stress --thickness 8",
-        variants_2d[0].file.display()
-    );
-    println!();
-    for line in CAUTIONS.lines() {
-        println!("  {line}");
+    println!("  that refinement converges.");
+    let mut outcome = Outcome::Ok;
+    for v in &variants_2d {
+        println!();
+        println!(
+            "  ---- the plan for the next mesh, {} corner: hone plan {} --target-error 0.25 ...",
+            v.corner.name(),
+            v.file.display()
+        );
+        let mut words = vec![
+            "plan".to_string(),
+            v.file.display().to_string(),
+            "--target-error".into(),
+            "0.25".into(),
+        ];
+        words.extend(plate_flags());
+        if run_command(&words)? == Outcome::Warnings {
+            outcome = Outcome::Warnings;
+        }
     }
-    Ok(Outcome::Ok)
+    for corner in [Corner::Sharp, Corner::Rounded] {
+        let files: Vec<String> = STUDY_SIZES
+            .iter()
+            .map(|(_, suffix)| {
+                dir.join(format!("deck_{}_tri6{suffix}.vtu", corner.name()))
+                    .display()
+                    .to_string()
+            })
+            .collect();
+        println!();
+        println!(
+            "  ---- convergence study, {} corner, three meshes halving every size: hone study {} ...",
+            corner.name(),
+            files.join(" ")
+        );
+        let mut words = vec!["study".to_string()];
+        words.extend(files);
+        words.extend([
+            "--probe".to_string(),
+            "max:von_mises@sphere(200,125,60)".to_string(),
+            "--plot".to_string(),
+            dir.join(format!("study_{}.svg", corner.name()))
+                .display()
+                .to_string(),
+        ]);
+        words.extend(plate_flags());
+        if run_command(&words)? == Outcome::Warnings {
+            outcome = Outcome::Warnings;
+        }
+    }
+    Ok(outcome)
 }

@@ -106,11 +106,13 @@ pub fn domain(corner: Corner) -> Domain {
     }
 }
 
-/// Target element size: `far` away from the corner, shrinking linearly towards it.
+/// Target element size: `far` away from the corner, shrinking linearly towards it. Every size
+/// is proportional to `far`, so halving `far` halves the mesh size everywhere (a systematic
+/// refinement, as a convergence study needs).
 fn size_field(far: f64) -> impl Fn([f64; 2]) -> f64 + Sync {
     move |p: [f64; 2]| {
         let d = ((p[0] - OPENING[0]).powi(2) + (p[1] - OPENING[1]).powi(2)).sqrt();
-        (0.25 * far + 0.15 * d).min(far)
+        (far * (0.25 + 0.006 * d)).min(far)
     }
 }
 

@@ -175,7 +175,8 @@ pub struct EnergyErrorRate {
     pub fitted: Option<f64>,
     /// Optimal rate p/d.
     pub optimal: f64,
-    /// "optimal", "singularity-limited" or "undetermined".
+    /// "optimal", "singularity-limited", "pre-asymptotic" (low, but too high for a
+    /// singularity) or "undetermined".
     pub verdict: &'static str,
     /// lambda = rate d implied by a singularity-limited rate.
     pub implied_lambda: Option<f64>,
@@ -255,9 +256,17 @@ fn energy_error_rate(samples: &[MeshSample]) -> EnergyErrorRate {
     let n = samples.len();
     let observed = log_slope(&dofs[n - 2..], &err[n - 2..]).map(|s| -s);
     let fitted = log_slope(&dofs, &err).map(|s| -s);
+    // A singularity caps the rate at lambda / d with lambda < 1 (method sheet 4.3). A low rate
+    // whose implied lambda is 1 or more cannot come from a singularity: the meshes are not yet
+    // in the asymptotic range (curved boundaries or fillets still being resolved).
     let (verdict, implied_lambda) = match observed {
         Some(r) if r < LIMITED_FRACTION * optimal => {
-            ("singularity-limited", Some(r * finest.dimension as f64))
+            let lambda = r * finest.dimension as f64;
+            if lambda < 1.0 {
+                ("singularity-limited", Some(lambda))
+            } else {
+                ("pre-asymptotic", None)
+            }
         }
         Some(_) => ("optimal", None),
         None => ("undetermined", None),
