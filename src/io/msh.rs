@@ -211,8 +211,8 @@ impl<'a> Parser<'a> {
                 file: self.file.to_string(),
                 what: format!("{what} ({})", self.section),
                 count: n,
-                needed: format!("at least {}", human_bytes(need)),
-                size: format!("{} left in the file", human_bytes(self.remaining() as f64)),
+                needed: format!("at least {} after byte {}", human_bytes(need), self.pos),
+                size: human_bytes(self.b.len() as f64),
             });
         }
         Ok(n as usize)
@@ -709,9 +709,11 @@ fn elements(p: &mut Parser, node_index: &TagIndex) -> Result<Cells, IoError> {
                 format!("{total} elements in all, as the section header says"),
             ));
         }
-        let n = n as usize;
-        read += n;
         let nn = ty.nodes;
+        // A row is at least its 1 + nn numbers: "1 " each in text, size_t each in binary.
+        let per_row = (1 + nn as u64) * if p.binary { p.size_t as u64 } else { 2 };
+        let n = p.check_count(n, per_row, "numElementsInBlock")?;
+        read += n;
         // Tags and node tags as read, one row per element.
         let mut rows: Vec<u64> = Vec::with_capacity(n * (1 + nn));
         if p.binary {

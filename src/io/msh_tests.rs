@@ -379,6 +379,12 @@ fn clear_errors_for_bad_references_and_types() {
     // Counts larger than the file.
     let e = error_of(&ASCII_2D.replace("2 5 10 90", "2 50000000 10 90"));
     assert!(e.contains("numNodes"), "{e}");
+    // A block of 64-node hexahedra larger than the file (refused before allocating).
+    let big = ASCII_2D
+        .replace("3 4 1 9", "3 100 1 9")
+        .replace("2 2 2 2\n", "3 2 92 80\n");
+    let e = error_of(&big);
+    assert!(e.contains("numElementsInBlock"), "{e}");
     // A missing $End.
     let e = error_of(&ASCII_2D.replace("$EndNodes", "$EndNodez"));
     assert!(e.contains("expected $EndNodes"), "{e}");
