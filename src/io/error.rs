@@ -156,12 +156,26 @@ pub enum IoError {
         found: String,
     },
     /// The file name has an extension no reader handles.
-    #[error("{path}: extension '{found}' is not supported, expected one of: .vtu, .pvtu")]
+    #[error("{path}: extension '{found}' is not supported, expected one of: .vtu, .pvtu, .msh")]
     UnsupportedExtension {
         /// The path.
         path: String,
         /// The extension found (empty when none).
         found: String,
+    },
+    /// A text or mixed text/binary mesh format (MSH, `.pos`, MEDIT) holds something other than
+    /// what its syntax requires at a given place.
+    #[error("{file}: {location}: found {found}, expected {expected}")]
+    Syntax {
+        /// File name.
+        file: String,
+        /// Where: line (text) or byte offset (binary data), and the section, e.g.
+        /// `line 12 ($Nodes)`.
+        location: String,
+        /// What the file holds there.
+        found: String,
+        /// What was required.
+        expected: String,
     },
     /// Pieces of a parallel file do not fit together.
     #[error("{file}: piece '{piece}' {found}, expected {expected}")]

@@ -15,6 +15,16 @@ use super::xml::{parse_document, structure};
 /// Reads a `.vtu` file. The file is memory-mapped, and raw appended arrays are converted
 /// straight from the map; it must not be modified by another process while it is read.
 pub fn read_vtu(path: &Path) -> Result<RawGrid, IoError> {
+    with_mapped_file(path, read_vtu_bytes)
+}
+
+/// Memory-maps `path` and hands its bytes and its displayed name to `read` (an empty file is
+/// passed as an empty slice: it cannot be mapped). The caller documents that the file must not
+/// be modified while it is read.
+pub(crate) fn with_mapped_file<T>(
+    path: &Path,
+    read: impl FnOnce(&[u8], &str) -> Result<T, IoError>,
+) -> Result<T, IoError> {
     let name = path.display().to_string();
     let io = |source| IoError::Io {
         path: name.clone(),
@@ -23,12 +33,12 @@ pub fn read_vtu(path: &Path) -> Result<RawGrid, IoError> {
     let file = std::fs::File::open(path).map_err(io)?;
     let len = file.metadata().map_err(io)?.len();
     if len == 0 {
-        return read_vtu_bytes(&[], &name);
+        return read(&[], &name);
     }
-    // SAFETY: the map is only read, and lives until parsing ends; the caller must not truncate
-    // the file meanwhile (documented above).
+    // SAFETY: the map is only read, and lives until `read` returns; the caller must not truncate
+    // the file meanwhile (documented on the public readers).
     let map = unsafe { memmap2::Mmap::map(&file) }.map_err(io)?;
-    read_vtu_bytes(&map, &name)
+    read(&map, &name)
 }
 
 /// Reads a `.vtu` file held in memory; `source_name` names it in error messages.
@@ -434,7 +444,8 @@ fn append_arrays(
     Ok(())
 }
 
-/// Reads a results file, choosing the reader by extension (`.vtu`, `.pvtu`; case-insensitive).
+/// Reads a results file, choosing the reader by extension (`.vtu`, `.pvtu`, `.msh`;
+/// case-insensitive).
 pub fn read_results(path: &Path) -> Result<RawGrid, IoError> {
     let ext = path
         .extension()
@@ -443,6 +454,7 @@ pub fn read_results(path: &Path) -> Result<RawGrid, IoError> {
     match ext.as_str() {
         "vtu" => read_vtu(path),
         "pvtu" => super::pvtu::read_pvtu(path),
+        "msh" => super::msh::read_msh(path),
         _ => Err(IoError::UnsupportedExtension {
             path: path.display().to_string(),
             found: ext,

@@ -1,0 +1,186 @@
+//! Shared pieces of the text writers (MSH, `.pos`, MEDIT): number formatting that reads back
+//! to the same `f64`, parallel formatting of big sections, and checks of the size field.
+
+use std::io::{self, Write};
+use std::ops::Range;
+
+use rayon::prelude::*;
+
+use super::error::IoError;
+
+/// Items formatted per parallel task. Chunk boundaries depend on the item count only, and the
+/// chunks are written in order, so the bytes do not depend on the thread count.
+pub(crate) const CHUNK: usize = 16_384;
+
+/// Chunks formatted before they are written: bounds the memory held by formatted text.
+const CHUNKS_IN_FLIGHT: usize = 64;
+
+/// Appends `v` in Rust's shortest round-trip form (`{:?}`: `0.5`, `1.0`, `1e-7`, `2.5e20`),
+/// which C's `strtod`, Python's `float` and Gmsh's parser read back to the same value; unlike
+/// `{}` it switches to an exponent for very large and very small magnitudes.
+#[inline]
+pub(crate) fn push_f64(out: &mut Vec<u8>, v: f64) {
+    // Writing to a Vec cannot fail.
+    let _ = write!(out, "{v:?}");
+}
+
+/// Appends an integer.
+#[inline]
+pub(crate) fn push_int(out: &mut Vec<u8>, v: impl int_text::Int) {
+    v.push(out);
+}
+
+/// Integer formatting without going through `fmt` for each digit string.
+pub(crate) mod int_text {
+    /// Integers the writers print.
+    pub(crate) trait Int: Copy {
+        /// Appends the decimal digits.
+        fn push(self, out: &mut Vec<u8>);
+    }
+
+    impl Int for u64 {
+        #[inline]
+        fn push(self, out: &mut Vec<u8>) {
+            let mut buf = [0u8; 20];
+            let mut i = buf.len();
+            let mut v = self;
+            loop {
+                i -= 1;
+                buf[i] = b'0' + (v % 10) as u8;
+                v /= 10;
+                if v == 0 {
+                    break;
+                }
+            }
+            out.extend_from_slice(&buf[i..]);
+        }
+    }
+
+    impl Int for usize {
+        #[inline]
+        fn push(self, out: &mut Vec<u8>) {
+            (self as u64).push(out)
+        }
+    }
+
+    impl Int for u32 {
+        #[inline]
+        fn push(self, out: &mut Vec<u8>) {
+            (self as u64).push(out)
+        }
+    }
+
+    impl Int for i64 {
+        #[inline]
+        fn push(self, out: &mut Vec<u8>) {
+            if self < 0 {
+                out.push(b'-');
+            }
+            self.unsigned_abs().push(out)
+        }
+    }
+}
+
+/// Formats items `0..n` with `f(range, buffer)` in chunks of [`CHUNK`] items on the rayon pool
+/// and writes the chunks in order.
+pub(crate) fn write_chunked(
+    w: &mut dyn Write,
+    n: usize,
+    f: impl Fn(Range<usize>, &mut Vec<u8>) + Sync,
+) -> io::Result<()> {
+    let batch = CHUNK * CHUNKS_IN_FLIGHT;
+    let mut start = 0;
+    while start < n {
+        let end = (start + batch).min(n);
+        let texts: Vec<Vec<u8>> = (start..end)
+            .step_by(CHUNK)
+            .collect::<Vec<_>>()
+            .into_par_iter()
+            .map(|s| {
+                let mut buf = Vec::with_capacity(64 * CHUNK);
+                f(s..(s + CHUNK).min(end), &mut buf);
+                buf
+            })
+            .collect();
+        for t in &texts {
+            w.write_all(t)?;
+        }
+        start = end;
+    }
+    Ok(())
+}
+
+/// Checks that `sizes` holds one finite value per mesh node; `path` names the output file.
+pub(crate) fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
+    if sizes.len() != node_count {
+        return Err(IoError::ArrayLength {
+            file: path.to_string(),
+            array: "size field".to_string(),
+            found: format!("{} values", sizes.len()),
+            expected: format!("{node_count} (one per mesh node)"),
+        });
+    }
+    if let Some(i) = sizes.iter().position(|v| !v.is_finite()) {
+        return Err(IoError::BadValue {
+            file: path.to_string(),
+            array: "size field".to_string(),
+            index: i as u64,
+            found: format!("{}", sizes[i]),
+            expected: "a finite target edge length".to_string(),
+        });
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_read_back_exactly() {
+        for v in [
+            0.0,
+            -0.0,
+            1.0,
+            0.1,
+            1e-300,
+            2.5e300,
+            123456.789,
+            -3.0e-7,
+            f64::MAX,
+        ] {
+            let mut out = Vec::new();
+            push_f64(&mut out, v);
+            let text = String::from_utf8(out).unwrap();
+            assert_eq!(
+                text.parse::<f64>().unwrap().to_bits(),
+                v.to_bits(),
+                "{text}"
+            );
+            assert!(text.len() < 30, "{text}");
+        }
+        let mut out = Vec::new();
+        push_int(&mut out, 0u64);
+        out.push(b' ');
+        push_int(&mut out, -1234i64);
+        out.push(b' ');
+        push_int(&mut out, u64::MAX);
+        assert_eq!(out, b"0 -1234 18446744073709551615");
+    }
+
+    #[test]
+    fn chunked_output_is_in_order() {
+        let n = 3 * CHUNK + 17;
+        let mut out = Vec::new();
+        write_chunked(&mut out, n, |r, buf| {
+            for i in r {
+                push_int(buf, i);
+                buf.push(b'\n');
+            }
+        })
+        .unwrap();
+        let text = String::from_utf8(out).unwrap();
+        let got: Vec<usize> = text.lines().map(|l| l.parse().unwrap()).collect();
+        assert_eq!(got, (0..n).collect::<Vec<_>>());
+    }
+}
