@@ -130,6 +130,52 @@ fn plan_json_summary_and_files() {
         let v: f64 = line.rsplit(',').next().unwrap().parse().unwrap();
         assert_eq!(v, *h);
     }
+    // The MSH size field carries the same values; the .pos view covers the triangles.
+    let msh = hone::io::read_msh(&out_dir.join("sizes.msh")).expect("MSH reads");
+    assert_eq!(&msh.point_array("size_target").unwrap().values, field);
+    let pos = hone::io::read_pos_view(&out_dir.join("sizes.pos")).expect(".pos reads");
+    assert_eq!(pos.name, "size_target");
+    assert_eq!(pos.entries.len(), rows.len());
+    assert!(out_dir.join("sizes.mesh").exists() && out_dir.join("sizes.sol").exists());
+
+    // An independent reader (meshio) sees the annotated VTU with its fields and values.
+    if common::meshio_available() {
+        let script = "import meshio, json, sys\n\
+m = meshio.read(sys.argv[1])\n\
+print(json.dumps({'points': len(m.points), 'cells': sum(len(c.data) for c in m.cells),\n\
+ 'point': sorted(m.point_data), 'cell': sorted(m.cell_data),\n\
+ 'size': [float(v) for v in m.point_data['size_target'].ravel()]}))";
+        let o = Command::new("python3")
+            .args(["-c", script])
+            .arg(out_dir.join("plan.vtu"))
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        let j: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+        assert_eq!(j["points"].as_u64().unwrap() as usize, back.points.len());
+        assert_eq!(j["cells"].as_u64().unwrap() as usize, rows.len());
+        for name in [
+            "size_target",
+            "refine_mark",
+            "singular_zone",
+            "error_energy",
+        ] {
+            assert!(
+                j["cell"].as_array().unwrap().iter().any(|n| n == name),
+                "{name}"
+            );
+        }
+        let sizes_back: Vec<f64> = j["size"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        for (a, b) in sizes_back.iter().zip(field) {
+            // JSON text from Python's repr round-trips exactly; serde may be off by an ulp.
+            assert!((a - b).abs() <= 2.0 * f64::EPSILON * b.abs());
+        }
+    }
 }
 
 #[test]

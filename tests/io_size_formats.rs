@@ -4,6 +4,8 @@
 //! part says why and is skipped, unless `HONE_REQUIRE_MESHIO=1` (set by `.ci/run` once it has
 //! installed meshio), which makes it a failure.
 
+mod common;
+
 use std::collections::HashMap;
 use std::path::Path;
 use std::process::Command;
@@ -121,21 +123,6 @@ print(json.dumps({
 }))
 "#;
 
-/// Why meshio cannot be used here, if it cannot.
-fn meshio_missing() -> Option<String> {
-    match Command::new("python3")
-        .args(["-c", "import meshio"])
-        .output()
-    {
-        Err(e) => Some(format!("python3 could not be started: {e}")),
-        Ok(o) if !o.status.success() => Some(format!(
-            "python3 cannot import meshio: {}",
-            String::from_utf8_lossy(&o.stderr).trim()
-        )),
-        Ok(_) => None,
-    }
-}
-
 fn num(v: &serde_json::Value) -> f64 {
     v.as_str()
         .and_then(|s| s.parse().ok())
@@ -203,11 +190,7 @@ fn check_with_meshio(dir: &Path, mesh: &Mesh, msh_type: &str, medit_type: &str) 
 
 #[test]
 fn msh_and_medit_read_back_with_meshio() {
-    if let Some(why) = meshio_missing() {
-        if std::env::var("HONE_REQUIRE_MESHIO").as_deref() == Ok("1") {
-            panic!("HONE_REQUIRE_MESHIO=1 but {why}");
-        }
-        eprintln!("skipping the meshio read-back: {why}");
+    if !common::meshio_available() {
         return;
     }
     let dir = tempfile::tempdir().unwrap();

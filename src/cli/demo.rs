@@ -247,7 +247,6 @@ pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {
         "  mesh is refined, and the error concentrates there. The rounded corner has a finite peak"
     );
     println!("  that refinement converges.");
-    let mut outcome = Outcome::Ok;
     for v in &variants_2d {
         println!();
         println!(
@@ -262,9 +261,7 @@ pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {
             "0.25".into(),
         ];
         words.extend(plate_flags());
-        if run_command(&words)? == Outcome::Warnings {
-            outcome = Outcome::Warnings;
-        }
+        run_command(&words)?;
     }
     for corner in [Corner::Sharp, Corner::Rounded] {
         let files: Vec<String> = STUDY_SIZES
@@ -292,9 +289,8 @@ pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {
                 .to_string(),
         ]);
         words.extend(plate_flags());
-        if run_command(&words)? == Outcome::Warnings {
-            outcome = Outcome::Warnings;
-        }
+        run_command(&words)?;
     }
-    Ok(outcome)
+    // The plans and studies print their own warnings; the demo itself ran as intended.
+    Ok(Outcome::Ok)
 }

@@ -4,7 +4,10 @@ use super::args::PlanArgs;
 use super::estimate::{load, write_annotated, Loaded};
 use super::progress::Stages;
 use super::Outcome;
-use crate::io::{cells_in_file_order, write_atomically, Field, FieldValues};
+use crate::io::{
+    cells_in_file_order, write_atomically, write_medit_size_field, write_msh_size_field,
+    write_pos_size_field, Field, FieldValues,
+};
 use crate::mesh::Model;
 use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
 use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv, ElementRows};
@@ -322,12 +325,22 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     )
 }
 
-/// plan.json, plan.csv, sizes.csv, plan.vtu in `dir`.
+/// plan.json, plan.csv, sizes.csv, plan.vtu, sizes.pos, sizes.msh, sizes.mesh, sizes.sol in
+/// `dir` (the indices are used below).
 fn plan_file_names(dir: &Path) -> Vec<PathBuf> {
-    ["plan.json", "plan.csv", "sizes.csv", "plan.vtu"]
-        .iter()
-        .map(|n| dir.join(n))
-        .collect()
+    [
+        "plan.json",
+        "plan.csv",
+        "sizes.csv",
+        "plan.vtu",
+        "sizes.pos",
+        "sizes.msh",
+        "sizes.mesh",
+        "sizes.sol",
+    ]
+    .iter()
+    .map(|n| dir.join(n))
+    .collect()
 }
 
 /// Writes plan.json, plan.csv and sizes.csv atomically.
@@ -367,5 +380,9 @@ fn write_plan_files(
         write_sizes_csv(w, &mesh.points, &the_plan.nodal_size)
     })
     .with_context(|| format!("writing {}", files[2].display()))?;
+    let sizes = &the_plan.nodal_size;
+    write_pos_size_field(&files[4], Some(input), mesh, sizes)?;
+    write_msh_size_field(&files[5], Some(input), mesh, sizes)?;
+    write_medit_size_field(&files[6], &files[7], Some(input), mesh, sizes)?;
     Ok(())
 }
