@@ -11,7 +11,7 @@ use crate::io::{
 use crate::mesh::Model;
 use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
 use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv, ElementRows};
-use crate::report::{PlanReport, SpotLine};
+use crate::report::{percent, PlanReport, SpotLine};
 use crate::singular::{screen, PoissonRatio, ScreeningOptions};
 use anyhow::{bail, Context, Result};
 use std::path::{Path, PathBuf};
@@ -145,7 +145,7 @@ fn settings(args: &PlanArgs) -> Result<PlanSettings> {
 pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let file = args.file.display().to_string();
     let settings = settings(args)?;
-    let stages = Stages::new(10, quiet || json);
+    let stages = Stages::new(16, quiet || json);
     let user_points = args
         .singular
         .iter()
@@ -164,7 +164,6 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
         bail!("{file}: the estimated error is zero everywhere (no strain energy or an exact field): there is nothing to plan");
     }
 
-    stages.stage("planning sizes");
     let mesh = &model.mesh;
     let n = mesh.element_count();
     let size_now = mesh.size_now();
@@ -206,19 +205,20 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
         size_now: &size_now,
         dofs_per_node: mesh.dimension,
     };
+    stages.stage("planning sizes");
     let the_plan = plan(&input, &settings).with_context(|| format!("planning {file}"))?;
     if the_plan.budget_limited && the_plan.achievable_error > the_plan.target_error {
         warnings.push(format!(
-            "the target {:.2} % needs more than {} DOFs; the budget buys about {:.2} %",
-            100.0 * the_plan.target_error,
+            "the target {} % needs more than {} DOFs; the budget buys about {} %",
+            percent(the_plan.target_error),
             settings.max_dofs.unwrap_or(0.0),
-            100.0 * the_plan.achievable_error
+            percent(the_plan.achievable_error)
         ));
     } else if the_plan.achievable_error > 1.05 * the_plan.target_error {
         warnings.push(format!(
-            "the per-plan limits keep this step from reaching {:.2} % (predicted {:.2} %); plan again after the next solve",
-            100.0 * the_plan.target_error,
-            100.0 * the_plan.achievable_error
+            "the per-plan limits keep this step from reaching {} % (predicted {} %); plan again after the next solve",
+            percent(the_plan.target_error),
+            percent(the_plan.achievable_error)
         ));
     }
 
@@ -269,6 +269,7 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
 
     stages.stage("writing plan files");
     write_plan_files(
+        &|m| stages.stage(m),
         &files,
         &args.file,
         &model,
@@ -346,6 +347,7 @@ fn plan_file_names(dir: &Path) -> Vec<PathBuf> {
 /// Writes plan.json, plan.csv and sizes.csv atomically.
 #[allow(clippy::too_many_arguments)]
 fn write_plan_files(
+    stage: &dyn Fn(&'static str),
     files: &[PathBuf],
     input: &Path,
     model: &Model,
@@ -370,19 +372,25 @@ fn write_plan_files(
         size_target: &the_plan.size_target,
         singular_zone,
     };
+    stage("writing plan.json");
     write_atomically(&files[0], Some(input), |w| {
         write_plan_json(w, summary, &rows)
     })
     .with_context(|| format!("writing {}", files[0].display()))?;
+    stage("writing plan.csv");
     write_atomically(&files[1], Some(input), |w| write_plan_csv(w, &rows))
         .with_context(|| format!("writing {}", files[1].display()))?;
+    stage("writing sizes.csv");
     write_atomically(&files[2], Some(input), |w| {
         write_sizes_csv(w, &mesh.points, &the_plan.nodal_size)
     })
     .with_context(|| format!("writing {}", files[2].display()))?;
     let sizes = &the_plan.nodal_size;
+    stage("writing sizes.pos");
     write_pos_size_field(&files[4], Some(input), mesh, sizes)?;
+    stage("writing sizes.msh");
     write_msh_size_field(&files[5], Some(input), mesh, sizes)?;
+    stage("writing sizes.mesh and sizes.sol");
     write_medit_size_field(&files[6], &files[7], Some(input), mesh, sizes)?;
     Ok(())
 }

@@ -44,7 +44,7 @@ mod pos;
 mod pvtu;
 mod read_vtu;
 mod scalar;
-mod text_out;
+pub(crate) mod text_out;
 mod write;
 mod xml;
 

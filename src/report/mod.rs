@@ -8,7 +8,7 @@ mod study_plot;
 mod study_report;
 
 pub use estimate_report::{EstimateReport, TopElement};
-pub use plan_report::{PlanReport, SpotLine};
+pub use plan_report::{percent, PlanReport, SpotLine};
 pub use study_plot::write_study_svg;
 pub use study_report::{StudyReport, NO_LIMIT};
 

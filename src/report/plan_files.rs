@@ -1,11 +1,10 @@
 //! The plan's table files: `plan.json` (summary plus one object per element), `plan.csv` (the
 //! same per-element rows) and `sizes.csv` (the nodal size field). Rows are formatted in parallel
 //! chunks and written in order, so big meshes write fast and the bytes never depend on the
-//! number of threads. Numbers use Rust's shortest round-trip formatting.
+//! number of threads. Numbers use the shortest round-trip form.
 
-use rayon::prelude::*;
+use crate::io::text_out::{push_f64, push_int, write_chunked};
 use serde_json::Value;
-use std::fmt::Write as _;
 use std::io::{self, Write};
 
 /// Per-element columns of the plan, indexed by element; `order` lists the elements in the
@@ -30,33 +29,43 @@ pub struct ElementRows<'a> {
     pub singular_zone: &'a [i32],
 }
 
-/// Rows per formatting chunk: big enough to amortise the task, small enough to bound memory.
-const CHUNK: usize = 1 << 15;
-
-/// Formats `n` rows with `row` in parallel chunks and writes them in order.
-fn write_rows(
-    w: &mut dyn Write,
-    n: usize,
-    row: impl Fn(usize, &mut String) + Sync,
-) -> io::Result<()> {
-    let starts: Vec<usize> = (0..n).step_by(CHUNK).collect();
-    // A window of chunks at a time keeps memory bounded on huge meshes.
-    for window in starts.chunks(64) {
-        let texts: Vec<String> = window
-            .par_iter()
-            .map(|&start| {
-                let mut s = String::with_capacity(CHUNK * 96);
-                for i in start..(start + CHUNK).min(n) {
-                    row(i, &mut s);
-                }
-                s
-            })
-            .collect();
-        for t in texts {
-            w.write_all(t.as_bytes())?;
+/// Appends one element row's values separated by `sep` (JSON or CSV), with the keys when
+/// `json` is set.
+fn push_row(out: &mut Vec<u8>, rows: &ElementRows, e: usize, json: bool) {
+    let fields: [(&str, f64); 4] = [
+        ("error_energy", rows.error_energy[e]),
+        ("error_share", rows.error_share[e]),
+        ("size_now", rows.size_now[e]),
+        ("size_target", rows.size_target[e]),
+    ];
+    let key = |out: &mut Vec<u8>, k: &str| {
+        if json {
+            out.extend_from_slice(b", \"");
+            out.extend_from_slice(k.as_bytes());
+            out.extend_from_slice(b"\": ");
+        } else {
+            out.push(b',');
         }
+    };
+    if json {
+        out.extend_from_slice(b"{\"id\": ");
     }
-    Ok(())
+    push_int(out, rows.id[e]);
+    for (k, v) in &fields[..2] {
+        key(out, k);
+        push_f64(out, *v);
+    }
+    key(out, "refine_mark");
+    push_int(out, i64::from(rows.refine_mark[e]));
+    for (k, v) in &fields[2..] {
+        key(out, k);
+        push_f64(out, *v);
+    }
+    key(out, "singular_zone");
+    push_int(out, i64::from(rows.singular_zone[e]));
+    if json {
+        out.push(b'}');
+    }
 }
 
 /// `plan.json`: `{"summary": {...}, "elements": [{"id": .., "error_energy": .., "error_share": ..,
@@ -66,20 +75,11 @@ pub fn write_plan_json(w: &mut dyn Write, summary: &Value, rows: &ElementRows) -
     serde_json::to_writer_pretty(&mut *w, summary)?;
     w.write_all(b",\n\"elements\": [\n")?;
     let n = rows.order.len();
-    write_rows(w, n, |i, s| {
-        let e = rows.order[i];
-        let _ = write!(
-            s,
-            "{{\"id\": {}, \"error_energy\": {}, \"error_share\": {}, \"refine_mark\": {}, \"size_now\": {}, \"size_target\": {}, \"singular_zone\": {}}}{}",
-            rows.id[e],
-            rows.error_energy[e],
-            rows.error_share[e],
-            rows.refine_mark[e],
-            rows.size_now[e],
-            rows.size_target[e],
-            rows.singular_zone[e],
-            if i + 1 < n { ",\n" } else { "\n" }
-        );
+    write_chunked(w, n, |range, out| {
+        for i in range {
+            push_row(out, rows, rows.order[i], true);
+            out.extend_from_slice(if i + 1 < n { b",\n" } else { b"\n" });
+        }
     })?;
     w.write_all(b"]\n}\n")
 }
@@ -87,34 +87,33 @@ pub fn write_plan_json(w: &mut dyn Write, summary: &Value, rows: &ElementRows) -
 /// `plan.csv`: a header line, then the same rows as `plan.json`.
 pub fn write_plan_csv(w: &mut dyn Write, rows: &ElementRows) -> io::Result<()> {
     w.write_all(b"id,error_energy,error_share,refine_mark,size_now,size_target,singular_zone\n")?;
-    write_rows(w, rows.order.len(), |i, s| {
-        let e = rows.order[i];
-        let _ = writeln!(
-            s,
-            "{},{},{},{},{},{},{}",
-            rows.id[e],
-            rows.error_energy[e],
-            rows.error_share[e],
-            rows.refine_mark[e],
-            rows.size_now[e],
-            rows.size_target[e],
-            rows.singular_zone[e]
-        );
+    write_chunked(w, rows.order.len(), |range, out| {
+        for i in range {
+            push_row(out, rows, rows.order[i], false);
+            out.push(b'\n');
+        }
     })
 }
 
 /// `sizes.csv`: `x,y,z,size` per node, in node order.
 pub fn write_sizes_csv(w: &mut dyn Write, points: &[[f64; 3]], sizes: &[f64]) -> io::Result<()> {
     w.write_all(b"x,y,z,size\n")?;
-    write_rows(w, points.len(), |i, s| {
-        let p = points[i];
-        let _ = writeln!(s, "{},{},{},{}", p[0], p[1], p[2], sizes[i]);
+    write_chunked(w, points.len(), |range, out| {
+        for i in range {
+            for v in points[i] {
+                push_f64(out, v);
+                out.push(b',');
+            }
+            push_f64(out, sizes[i]);
+            out.push(b'\n');
+        }
     })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::io::text_out::CHUNK;
 
     type Columns = (Vec<usize>, Vec<u32>, Vec<f64>, Vec<i8>, Vec<i32>);
 

@@ -73,6 +73,11 @@ pub struct PlanReport {
     pub notes: Vec<String>,
 }
 
+/// A fraction as a percentage with 3 significant digits (0.0115 -> "1.15", 3.7e-5 -> "0.00370").
+pub fn percent(fraction: f64) -> String {
+    number(100.0 * fraction, 3)
+}
+
 impl PlanReport {
     /// Writes the text summary.
     pub fn write_text(&self, w: &mut impl Write) -> io::Result<()> {
@@ -97,13 +102,13 @@ impl PlanReport {
         writeln!(w)?;
         writeln!(
             w,
-            "  global relative error  {:.2} % now",
-            100.0 * self.relative_error
+            "  global relative error  {} % now",
+            percent(self.relative_error)
         )?;
         writeln!(
             w,
-            "  target error           {:.2} %{}",
-            100.0 * self.target_error,
+            "  target error           {} %{}",
+            percent(self.target_error),
             if self.target_is_default {
                 " (default, common practice)"
             } else {
@@ -124,8 +129,8 @@ impl PlanReport {
         }
         writeln!(
             w,
-            "  achievable error       {:.2} % (predicted for the planned mesh)",
-            100.0 * self.achievable_error
+            "  achievable error       {} % (predicted for the planned mesh)",
+            percent(self.achievable_error)
         )?;
         writeln!(w)?;
         let ratio = self.predicted_dofs / self.current_dofs.max(1.0);
