@@ -28,15 +28,22 @@ impl StudyReport {
     pub fn write_text(&self, w: &mut impl Write) -> io::Result<()> {
         let s = &self.study;
         writeln!(w, "Convergence study over {} meshes", s.meshes.len())?;
+        let width = s
+            .meshes
+            .iter()
+            .map(|m| m.0.chars().count())
+            .max()
+            .unwrap_or(0)
+            .max(4);
         writeln!(
             w,
-            "  {:<28} {:>12} {:>12} {:>12}",
+            "  {:<width$} {:>12} {:>12} {:>12}",
             "mesh", "DOFs", "elements", "size h"
         )?;
         for (label, dofs, elements, h) in &s.meshes {
             writeln!(
                 w,
-                "  {:<28} {:>12} {:>12} {:>12}",
+                "  {:<width$} {:>12} {:>12} {:>12}",
                 label,
                 thousands(*dofs),
                 thousands(*elements),
