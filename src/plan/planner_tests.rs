@@ -225,3 +225,31 @@ fn bad_settings_are_errors() {
         assert!(plan(&case.input(1.0), &settings).is_err());
     }
 }
+
+/// With `fit_final_error` the final field's predicted error meets the target within
+/// `TARGET_FIT_BAND` below it, where without it the vertex minimum and the gradation leave it
+/// below the band; the fitted plan needs fewer elements (the definition of the option).
+#[test]
+fn fit_final_error_meets_the_target_from_below() {
+    let case = graded_case();
+    // No step limits: they would hold this case above 2 %.
+    let off = PlanSettings {
+        target_error: Some(0.02),
+        step_limits: (1e-12, 1e12),
+        ..PlanSettings::default()
+    };
+    let on = PlanSettings {
+        fit_final_error: true,
+        ..off.clone()
+    };
+    let a = plan(&case.input(1.0), &off).unwrap();
+    let b = plan(&case.input(1.0), &on).unwrap();
+    let low = (1.0 - TARGET_FIT_BAND) * 0.02;
+    assert!(a.achievable_error < low, "{}", a.achievable_error);
+    assert!(
+        (low..=0.02).contains(&b.achievable_error),
+        "{}",
+        b.achievable_error
+    );
+    assert!(b.predicted_elements < a.predicted_elements);
+}

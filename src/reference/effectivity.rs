@@ -6,7 +6,7 @@
 //! the element indicators is Spearman's rank correlation (Spearman 1904).
 
 use super::problems::Problem;
-use crate::estimate::{estimate_model, EstimateError};
+use crate::estimate::EstimateError;
 use crate::recovery::RecoveryMethod;
 use thiserror::Error;
 
@@ -52,20 +52,8 @@ pub fn effectivity_row(
     level: usize,
 ) -> Result<EffectivityRow, EffectivityError> {
     let solved = problem.solve()?;
-    let spr = estimate_model(
-        &solved.model,
-        &problem.materials,
-        problem.mode,
-        RecoveryMethod::Spr,
-        &|_| {},
-    )?;
-    let avg = estimate_model(
-        &solved.model,
-        &problem.materials,
-        problem.mode,
-        RecoveryMethod::Average,
-        &|_| {},
-    )?;
+    let spr = problem.estimate(&solved, RecoveryMethod::Spr)?;
+    let avg = problem.estimate(&solved, RecoveryMethod::Average)?;
     let exact = solved.error_sq.sqrt();
     Ok(EffectivityRow {
         problem: problem.name,

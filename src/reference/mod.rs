@@ -2,6 +2,7 @@
 //! generators and a 2D mesher, and benchmark problems with published exact solutions. Not a
 //! user-facing solver; problems are defined in code.
 
+pub mod adaptive;
 pub mod demo;
 pub mod effectivity;
 pub mod meshes;

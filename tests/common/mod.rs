@@ -84,14 +84,9 @@ pub fn scratch(name: &str) -> PathBuf {
 /// Solves a reference problem and runs the estimate (SPR) on its result.
 pub fn solve_and_estimate(problem: &Problem) -> (Solved, Computed) {
     let solved = problem.solve().expect("solves");
-    let computed = estimate_model(
-        &solved.model,
-        &problem.materials,
-        problem.mode,
-        RecoveryMethod::Spr,
-        &|_| {},
-    )
-    .expect("estimate");
+    let computed = problem
+        .estimate(&solved, RecoveryMethod::Spr)
+        .expect("estimate");
     (solved, computed)
 }
 

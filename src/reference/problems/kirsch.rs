@@ -16,10 +16,11 @@
 //! ```
 //! Peak: sigma_xx(0, a) = 3 S (Kt = 3).
 
-use super::{exact_traction, ExactStress, Problem, ON_BOUNDARY};
+use super::{exact_traction, first_kind, ExactStress, Problem, ON_BOUNDARY};
 use crate::element::ElementKind;
 use crate::material::{AnalysisMode, Material, MaterialMap};
-use crate::reference::meshes::plate_with_hole;
+use crate::mesh::Mesh;
+use crate::reference::meshes::{plate_with_hole, Domain, Loop, Segment};
 use crate::reference::solver::{fix_component, BoundaryConditions};
 use std::sync::Arc;
 
@@ -80,7 +81,37 @@ pub const GRADING: f64 = 1.15;
 /// hole.
 pub fn kirsch(kind: ElementKind, n: usize) -> Problem {
     let ratio = GRADING.powf(8.0 / (2 * n) as f64);
-    let mesh = plate_with_hole(kind, A, L, 2 * n, n, ratio);
+    kirsch_on(plate_with_hole(kind, A, L, 2 * n, n, ratio))
+}
+
+/// The quarter plate `[0, L]^2` minus the quarter disc `r < A` for the mesher, the region of
+/// [`plate_with_hole`] with the constants of this problem: counter-clockwise from (A, 0) along
+/// the symmetry line `y = 0`, the outer edges, the symmetry line `x = 0` and the hole's arc
+/// (clockwise about the origin).
+pub fn kirsch_domain() -> Domain {
+    Domain {
+        outer: Loop {
+            start: [A, 0.0],
+            segments: vec![
+                Segment::Line { to: [L, 0.0] },
+                Segment::Line { to: [L, L] },
+                Segment::Line { to: [0.0, L] },
+                Segment::Line { to: [0.0, A] },
+                Segment::Arc {
+                    center: [0.0, 0.0],
+                    to: [A, 0.0],
+                    counter_clockwise: false,
+                },
+            ],
+        },
+        holes: Vec::new(),
+    }
+}
+
+/// The Kirsch problem on any mesh of [`kirsch_domain`] (one 2D kind): symmetry supports on the
+/// axes, the exact traction on `x = L` and `y = L`, the hole free.
+pub fn kirsch_on(mesh: Mesh) -> Problem {
+    let kind = first_kind(&mesh);
     let exact_stress: ExactStress = Arc::new(|p| kirsch_stress(p[0], p[1]));
     let tol = ON_BOUNDARY * L;
     let mut constraints = Vec::new();
@@ -109,7 +140,7 @@ pub fn kirsch(kind: ElementKind, n: usize) -> Problem {
         },
         exact_stress,
         exact_displacement: Arc::new(|p| kirsch_displacement(p[0], p[1])),
-        rate_exponent: kind.order() as f64,
+        rate_exponent: kind.map_or(1, ElementKind::order) as f64,
         mesh,
     }
 }

@@ -16,10 +16,11 @@
 //! faces at theta = +-omega, omega = 3 pi / 4; lambda solves sin(2 lambda omega) +
 //! lambda sin(2 omega) = 0.
 
-use super::{exact_traction, ExactStress, Problem, ON_BOUNDARY};
+use super::{exact_traction, first_kind, ExactStress, Problem, ON_BOUNDARY};
 use crate::element::ElementKind;
 use crate::material::{AnalysisMode, Material, MaterialMap};
-use crate::reference::meshes;
+use crate::mesh::Mesh;
+use crate::reference::meshes::{self, Domain, Loop, Segment};
 use crate::reference::solver::{select_nodes, BoundaryConditions, Constraint};
 use std::f64::consts::PI;
 use std::sync::Arc;
@@ -86,7 +87,37 @@ pub fn williams_displacement(x: f64, y: f64) -> [f64; 3] {
 
 /// The L-shape with `n` cells per unit length (three n x n blocks).
 pub fn l_shape(kind: ElementKind, n: usize) -> Problem {
-    let mesh = meshes::l_shape(kind, 1.0, n);
+    l_shape_on(meshes::l_shape(kind, 1.0, n))
+}
+
+/// The L-shape outline for the mesher, counter-clockwise from the re-entrant corner (0, 0):
+/// the same region as the mapped mesh, `(-1,1)^2` minus the quadrant `x > 0, y < 0`. The left
+/// edge is split at (-1, 0) so that every mesh of the domain has a node where [`l_shape_on`]
+/// holds `u_y`.
+pub fn l_shape_domain() -> Domain {
+    let corners = [
+        [1.0, 0.0],
+        [1.0, 1.0],
+        [-1.0, 1.0],
+        [-1.0, 0.0],
+        [-1.0, -1.0],
+        [0.0, -1.0],
+        [0.0, 0.0],
+    ];
+    Domain {
+        outer: Loop {
+            start: [0.0, 0.0],
+            segments: corners.iter().map(|&to| Segment::Line { to }).collect(),
+        },
+        holes: Vec::new(),
+    }
+}
+
+/// The L-shape problem on any mesh of [`l_shape_domain`] (one 2D kind): exact tractions on the
+/// four outer edges, `u = 0` at the corner and `u_y` exact at (-1, 0). The mesh must have nodes
+/// at (0, 0) and (-1, 0); without them the rigid modes stay free and the solve reports it.
+pub fn l_shape_on(mesh: Mesh) -> Problem {
+    let kind = first_kind(&mesh);
     let exact_stress: ExactStress = Arc::new(|p| williams_stress(p[0], p[1]));
     let tol = ON_BOUNDARY;
     let mut constraints = Vec::new();
@@ -140,7 +171,7 @@ pub fn l_shape(kind: ElementKind, n: usize) -> Problem {
         },
         exact_stress,
         exact_displacement: Arc::new(|p| williams_displacement(p[0], p[1])),
-        rate_exponent: WILLIAMS_LAMBDA_270.min(kind.order() as f64),
+        rate_exponent: WILLIAMS_LAMBDA_270.min(kind.map_or(1, ElementKind::order) as f64),
         mesh,
     }
 }

@@ -13,13 +13,16 @@ mod lame;
 mod manufactured;
 
 pub use cantilever::cantilever;
-pub use kirsch::kirsch;
-pub use l_shape::{l_shape, WILLIAMS_LAMBDA_270};
+pub use kirsch::{kirsch, kirsch_domain, kirsch_on};
+pub use l_shape::{l_shape, l_shape_domain, l_shape_on, WILLIAMS_LAMBDA_270};
 pub use lame::{lame_axisymmetric, lame_plane_strain, lame_solid};
 pub use manufactured::manufactured_box;
 
+use crate::element::ElementKind;
+use crate::estimate::{estimate_model, Computed, EstimateError};
 use crate::material::{AnalysisMode, MaterialMap, SymTensor};
 use crate::mesh::{Mesh, Model};
+use crate::recovery::RecoveryMethod;
 use crate::reference::solver::{
     exact_errors, solve, BoundaryConditions, SolveError, SolveOptions, TractionField, TractionLoad,
 };
@@ -86,6 +89,15 @@ impl Solved {
 pub const EXACT_ERROR_ORDER: usize = 8;
 
 impl Problem {
+    /// Runs hone's estimate stage (recovery `method`) on a solution of this problem.
+    pub fn estimate(
+        &self,
+        solved: &Solved,
+        method: RecoveryMethod,
+    ) -> Result<Computed, EstimateError> {
+        estimate_model(&solved.model, &self.materials, self.mode, method, &|_| {})
+    }
+
     /// Solves with the reference solver and measures the exact error.
     pub fn solve(&self) -> Result<Solved, SolveError> {
         let solution = solve(
@@ -139,6 +151,12 @@ pub fn exact_traction(
         facets: crate::reference::solver::select_facets(mesh, keep),
         traction: traction_of(stress.clone()),
     }
+}
+
+/// The element kind of the mesh's first block (`None` for a mesh without elements); the
+/// problems on a given mesh take their convergence exponent from it.
+fn first_kind(mesh: &Mesh) -> Option<ElementKind> {
+    mesh.blocks.first().map(|b| b.kind)
 }
 
 /// Relative tolerance for selecting boundary nodes and facets by coordinate: 1e-9 of the
