@@ -48,7 +48,7 @@ fn plan_json_summary_and_files() {
         f,
         &[
             "--target-error",
-            "1",
+            "0.5",
             "--json",
             "--out-dir",
             out_dir.to_str().unwrap(),
@@ -73,10 +73,11 @@ fn plan_json_summary_and_files() {
     ] {
         assert!(v.get(key).is_some(), "missing key {key}");
     }
-    assert_eq!(v["target_error"].as_f64(), Some(0.01));
-    // Aiming below the current error costs more DOFs than the current mesh has.
+    assert!((v["target_error"].as_f64().unwrap() - 0.005).abs() < 1e-15);
+    // Aiming at a third of the current error costs more DOFs than the current mesh has (a
+    // better distribution alone cannot buy a factor 3 at rate p/d = 1).
     let eta = v["relative_error"].as_f64().unwrap();
-    assert!(eta > 0.01, "the coarse plate already has {eta}");
+    assert!(eta > 0.012, "the coarse plate already has {eta}");
     assert!(v["predicted_dofs"].as_f64().unwrap() > v["current_dofs"].as_f64().unwrap());
     assert!(v["marked_elements"].as_u64().unwrap() > 0);
 
