@@ -107,7 +107,10 @@ pub fn limit_gradation(
         neighbours[fill[b as usize]] = a;
         fill[b as usize] += 1;
     }
+    // Only nodes on some edge can change or pass a change on (mid-side nodes of quadratic
+    // meshes are not on vertex edges): the heap holds those alone.
     let mut heap: BinaryHeap<Entry> = (0..n)
+        .filter(|&i| start[i + 1] > start[i])
         .map(|i| Entry {
             size: sizes[i],
             node: i as u32,

@@ -18,7 +18,7 @@
 //! the final field fits (the closed-form count of sheet 3.2 ignores the minimum, the limits and
 //! the gradation, which all add elements).
 
-use super::field::{element_sizes, interpolate_non_vertex, predicted_elements, vertex_minimum};
+use super::field::{element_sizes, interpolate_non_vertex, vertex_minimum, ElementCounter};
 use super::{check_range, check_values, dorfler, fraction, limit_gradation, maximum, PlanError};
 use crate::mesh::Mesh;
 use rayon::prelude::*;
@@ -334,6 +334,7 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
         .singular_floor
         .unwrap_or(DEFAULT_SINGULAR_FLOOR * diagonal);
     let edges = mesh.vertex_edges();
+    let counter = ElementCounter::new(mesh);
     let nodes_per_element = mesh.node_count() as f64 / n.max(1) as f64;
     let dofs_of = |elements: f64| elements * nodes_per_element * input.dofs_per_node as f64;
 
@@ -364,7 +365,7 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
         limit_gradation(&mesh.points, &edges, &mut nodal, settings.grading)?;
         interpolate_non_vertex(mesh, &mut nodal);
         let size_target = element_sizes(mesh, &nodal);
-        let elements = predicted_elements(mesh, &nodal);
+        let elements = counter.count(mesh, &nodal);
         let terms: Vec<f64> = (0..n)
             .into_par_iter()
             .map(|i| {
