@@ -149,7 +149,7 @@ fn settings(args: &PlanArgs) -> Result<PlanSettings> {
 pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let file = args.file.display().to_string();
     let settings = settings(args)?;
-    let stages = Stages::new(16, quiet || json);
+    let stages = Stages::new(10, quiet || json);
     let user_points = args
         .singular
         .iter()
@@ -272,8 +272,40 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let summary = report.to_json();
 
     stages.stage("writing plan files");
+    let refine_mark: Vec<i32> = the_plan.refine_mark.iter().map(|&m| i32::from(m)).collect();
+    let annotated = || {
+        write_annotated(
+            &files[3],
+            &args.file,
+            &model,
+            &computed,
+            false,
+            &[Field {
+                name: "size_target",
+                components: 1,
+                values: FieldValues::F64(&the_plan.nodal_size),
+            }],
+            &[
+                Field {
+                    name: "size_target",
+                    components: 1,
+                    values: FieldValues::F64(&the_plan.size_target),
+                },
+                Field {
+                    name: "refine_mark",
+                    components: 1,
+                    values: FieldValues::I32(&refine_mark),
+                },
+                Field {
+                    name: "singular_zone",
+                    components: 1,
+                    values: FieldValues::I32(&singular_zone),
+                },
+            ],
+        )
+        .with_context(|| format!("writing {}", files[3].display()))
+    };
     write_plan_files(
-        &|m| stages.stage(m),
         &files,
         &args.file,
         &model,
@@ -282,44 +314,8 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
         &size_now,
         &singular_zone,
         &summary,
+        &annotated,
     )?;
-    stages.stage("writing annotated VTU");
-    write_annotated(
-        &files[3],
-        &args.file,
-        &model,
-        &computed,
-        false,
-        &[Field {
-            name: "size_target",
-            components: 1,
-            values: FieldValues::F64(&the_plan.nodal_size),
-        }],
-        &[
-            Field {
-                name: "size_target",
-                components: 1,
-                values: FieldValues::F64(&the_plan.size_target),
-            },
-            Field {
-                name: "refine_mark",
-                components: 1,
-                values: FieldValues::I32(
-                    &the_plan
-                        .refine_mark
-                        .iter()
-                        .map(|&m| i32::from(m))
-                        .collect::<Vec<_>>(),
-                ),
-            },
-            Field {
-                name: "singular_zone",
-                components: 1,
-                values: FieldValues::I32(&singular_zone),
-            },
-        ],
-    )
-    .with_context(|| format!("writing {}", files[3].display()))?;
     stages.finish();
 
     super::print_report(
@@ -348,10 +344,9 @@ fn plan_file_names(dir: &Path) -> Vec<PathBuf> {
     .collect()
 }
 
-/// Writes plan.json, plan.csv and sizes.csv atomically.
+/// Writes every plan file side by side (the annotated VTU through `annotated`), each atomically.
 #[allow(clippy::too_many_arguments)]
 fn write_plan_files(
-    stage: &dyn Fn(&'static str),
     files: &[PathBuf],
     input: &Path,
     model: &Model,
@@ -360,6 +355,7 @@ fn write_plan_files(
     size_now: &[f64],
     singular_zone: &[i32],
     summary: &serde_json::Value,
+    annotated: &(dyn Fn() -> Result<()> + Sync),
 ) -> Result<()> {
     let mesh = &model.mesh;
     let n = mesh.element_count();
@@ -376,25 +372,51 @@ fn write_plan_files(
         size_target: &the_plan.size_target,
         singular_zone,
     };
-    stage("writing plan.json");
-    write_atomically(&files[0], Some(input), |w| {
-        write_plan_json(w, summary, &rows)
-    })
-    .with_context(|| format!("writing {}", files[0].display()))?;
-    stage("writing plan.csv");
-    write_atomically(&files[1], Some(input), |w| write_plan_csv(w, &rows))
-        .with_context(|| format!("writing {}", files[1].display()))?;
-    stage("writing sizes.csv");
-    write_atomically(&files[2], Some(input), |w| {
-        write_sizes_csv(w, &mesh.points, &the_plan.nodal_size)
-    })
-    .with_context(|| format!("writing {}", files[2].display()))?;
     let sizes = &the_plan.nodal_size;
-    stage("writing sizes.pos");
-    write_pos_size_field(&files[4], Some(input), mesh, sizes)?;
-    stage("writing sizes.msh");
-    write_msh_size_field(&files[5], Some(input), mesh, sizes)?;
-    stage("writing sizes.mesh and sizes.sol");
-    write_medit_size_field(&files[6], &files[7], Some(input), mesh, sizes)?;
+    let context = |i: usize| format!("writing {}", files[i].display());
+    // The files are written side by side: formatting (rayon) overlaps the disk writes and
+    // syncs of the others. Each file is still written atomically and byte-identically.
+    let results: Vec<Result<()>> = std::thread::scope(|scope| {
+        let jobs: Vec<std::thread::ScopedJoinHandle<'_, Result<()>>> = vec![
+            scope.spawn(|| {
+                write_atomically(&files[0], Some(input), |w| {
+                    write_plan_json(w, summary, &rows)
+                })
+                .with_context(|| context(0))
+            }),
+            scope.spawn(|| {
+                write_atomically(&files[1], Some(input), |w| write_plan_csv(w, &rows))
+                    .with_context(|| context(1))
+            }),
+            scope.spawn(|| {
+                write_atomically(&files[2], Some(input), |w| {
+                    write_sizes_csv(w, &mesh.points, sizes)
+                })
+                .with_context(|| context(2))
+            }),
+            scope.spawn(|| {
+                write_pos_size_field(&files[4], Some(input), mesh, sizes)
+                    .with_context(|| context(4))
+            }),
+            scope.spawn(|| {
+                write_msh_size_field(&files[5], Some(input), mesh, sizes)
+                    .with_context(|| context(5))
+            }),
+            scope.spawn(annotated),
+            scope.spawn(|| {
+                write_medit_size_field(&files[6], &files[7], Some(input), mesh, sizes)
+                    .with_context(|| context(6))
+            }),
+        ];
+        jobs.into_iter()
+            .map(|j| {
+                j.join()
+                    .unwrap_or_else(|_| Err(anyhow::anyhow!("a plan writer stopped unexpectedly")))
+            })
+            .collect()
+    });
+    for r in results {
+        r?;
+    }
     Ok(())
 }

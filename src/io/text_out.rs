@@ -13,7 +13,7 @@ use super::error::IoError;
 pub(crate) const CHUNK: usize = 16_384;
 
 /// Chunks formatted before they are written: bounds the memory held by formatted text.
-const CHUNKS_IN_FLIGHT: usize = 64;
+const CHUNKS_IN_FLIGHT: usize = 16;
 
 /// Appends `v` in its shortest round-trip form (`0.5`, `1.0`, `1e-7`, `2.5e20`), which C's
 /// `strtod`, Python's `float`, JSON parsers and Gmsh's parser read back to the same value. The

@@ -335,6 +335,17 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
         .unwrap_or(DEFAULT_SINGULAR_FLOOR * diagonal);
     let edges = mesh.vertex_edges();
     let counter = ElementCounter::new(mesh);
+    // Vertices of singular elements keep at least the floor (capped by the element's current
+    // size, so the floor never coarsens): the vertex minimum would otherwise hand them a
+    // neighbour's smaller target and refinement would go on at the spot plan after plan.
+    let mut floor_nodes: Vec<(u32, f64)> = Vec::new();
+    for e in (0..n).filter(|&e| input.singular[e]) {
+        let (kind, nodes) = mesh.element(e);
+        let f = floor.min(input.size_now[e]);
+        floor_nodes.extend(nodes[..kind.vertex_count()].iter().map(|&v| (v, f)));
+    }
+    floor_nodes.sort_unstable_by(|a, b| a.0.cmp(&b.0).then(a.1.total_cmp(&b.1)));
+    floor_nodes.dedup_by_key(|x| x.0);
     let nodes_per_element = mesh.node_count() as f64 / n.max(1) as f64;
     let dofs_of = |elements: f64| elements * nodes_per_element * input.dofs_per_node as f64;
 
@@ -361,8 +372,18 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
             })
             .collect();
         let mut nodal = vertex_minimum(mesh, &element_target);
+        let hold_floor = |nodal: &mut [f64]| {
+            for &(node, f) in &floor_nodes {
+                let h = &mut nodal[node as usize];
+                *h = h.max(f);
+            }
+        };
+        hold_floor(&mut nodal);
         interpolate_non_vertex(mesh, &mut nodal);
         limit_gradation(&mesh.points, &edges, &mut nodal, settings.grading)?;
+        // The floor wins over the gradation at the spot itself: refinement stops there even
+        // when a neighbour asks for smaller elements.
+        hold_floor(&mut nodal);
         interpolate_non_vertex(mesh, &mut nodal);
         let size_target = element_sizes(mesh, &nodal);
         let elements = counter.count(mesh, &nodal);

@@ -197,6 +197,15 @@ fn singular_floor_holds() {
     };
     let p = plan(&case.input(1.0), &settings).unwrap();
     assert!((p.element_target[0] - 0.06).abs() < 1e-12);
+    // A non-singular neighbour asking for much smaller elements does not pull the spot's
+    // vertices below the floor.
+    case.error_sq[1] = case.error_sq[0];
+    let p = plan(&case.input(1.0), &settings).unwrap();
+    assert!(p.element_target[1] < 0.06);
+    let (kind, nodes) = case.mesh.element(0);
+    for &v in &nodes[..kind.vertex_count()] {
+        assert!(p.nodal_size[v as usize] >= 0.06 * (1.0 - 1e-12));
+    }
 }
 
 /// Bad settings are errors naming the setting, not panics.
