@@ -95,8 +95,8 @@ impl EstimateReport {
         writeln!(w)?;
         writeln!(
             w,
-            "  global relative error  {:.2} %",
-            100.0 * self.relative_error
+            "  global relative error  {} %",
+            super::percent(self.relative_error)
         )?;
         writeln!(
             w,
