@@ -153,22 +153,60 @@ impl Mesh {
 
     /// Every vertex-to-vertex edge of the mesh once, as (smaller node, larger node), sorted.
     /// Mid-side nodes are not vertices; the size field and its gradation live on these edges.
+    /// Built by bucketing every element edge on its smaller node (a counting sort), then
+    /// sorting and deduplicating each small bucket in parallel.
     pub fn vertex_edges(&self) -> Vec<(u32, u32)> {
         use rayon::prelude::*;
-        let mut edges: Vec<(u32, u32)> = Vec::new();
-        for b in &self.blocks {
-            let list = b.kind.edges();
-            edges.reserve(b.len() * list.len());
-            for c in 0..b.len() {
-                let nodes = b.cell(c);
-                for [i, j] in list {
-                    let (a, z) = (nodes[*i], nodes[*j]);
-                    edges.push((a.min(z), a.max(z)));
+        let n = self.node_count();
+        let each_edge = |f: &mut dyn FnMut(u32, u32)| {
+            for b in &self.blocks {
+                let list = b.kind.edges();
+                for c in 0..b.len() {
+                    let nodes = b.cell(c);
+                    for [i, j] in list {
+                        let (a, z) = (nodes[*i], nodes[*j]);
+                        f(a.min(z), a.max(z));
+                    }
                 }
             }
+        };
+        let mut start = vec![0usize; n + 1];
+        each_edge(&mut |a, _| start[a as usize + 1] += 1);
+        for i in 0..n {
+            start[i + 1] += start[i];
         }
-        edges.par_sort_unstable();
-        edges.dedup();
+        let mut fill = start.clone();
+        let mut other = vec![0u32; start[n]];
+        each_edge(&mut |a, z| {
+            other[fill[a as usize]] = z;
+            fill[a as usize] += 1;
+        });
+        // Sort and deduplicate each bucket; `kept[a]` is the bucket's count of distinct ends.
+        let mut buckets: Vec<&mut [u32]> = Vec::with_capacity(n);
+        let mut rest: &mut [u32] = &mut other;
+        for a in 0..n {
+            let (head, tail) = rest.split_at_mut(start[a + 1] - start[a]);
+            buckets.push(head);
+            rest = tail;
+        }
+        let kept: Vec<usize> = buckets
+            .par_iter_mut()
+            .map(|bucket| {
+                bucket.sort_unstable();
+                let mut k = 0;
+                for i in 0..bucket.len() {
+                    if i == 0 || bucket[i] != bucket[k - 1] {
+                        bucket[k] = bucket[i];
+                        k += 1;
+                    }
+                }
+                k
+            })
+            .collect();
+        let mut edges = Vec::with_capacity(kept.iter().sum());
+        for (a, &k) in kept.iter().enumerate() {
+            edges.extend(other[start[a]..start[a] + k].iter().map(|&z| (a as u32, z)));
+        }
         edges
     }
 

@@ -103,3 +103,28 @@ fn inverted_element_is_reported_by_file_id() {
     assert_eq!(bad[0].file_cell, 11);
     assert_eq!(bad[0].kind, BadElementKind::Inverted);
 }
+
+/// `vertex_edges` (bucketed) lists each vertex edge once, sorted: the same list as sorting
+/// and deduplicating every element edge directly.
+#[test]
+fn vertex_edges_match_a_plain_sort() {
+    for kind in [
+        ElementKind::Tet10,
+        ElementKind::Hex20,
+        ElementKind::Tri6,
+        ElementKind::Wedge15,
+    ] {
+        let mesh = crate::mesh::generate::structured(kind, [3, 2, 2], [1.0, 1.0, 1.0]);
+        let mut plain: Vec<(u32, u32)> = Vec::new();
+        for e in 0..mesh.element_count() {
+            let (k, nodes) = mesh.element(e);
+            for [i, j] in k.edges() {
+                let (a, b) = (nodes[*i], nodes[*j]);
+                plain.push((a.min(b), a.max(b)));
+            }
+        }
+        plain.sort_unstable();
+        plain.dedup();
+        assert_eq!(mesh.vertex_edges(), plain, "{kind:?}");
+    }
+}

@@ -379,8 +379,20 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
             }
         };
         hold_floor(&mut nodal);
-        interpolate_non_vertex(mesh, &mut nodal);
+        // Non-vertex nodes (and nodes in no element) lie on no vertex edge, so the gradation
+        // never reads them: park them at f64::MAX (a finite size it accepts) and interpolate
+        // them once the vertices are final.
+        nodal.par_iter_mut().for_each(|h| {
+            if h.is_infinite() {
+                *h = f64::MAX;
+            }
+        });
         limit_gradation(&mesh.points, &edges, &mut nodal, settings.grading)?;
+        nodal.par_iter_mut().for_each(|h| {
+            if *h == f64::MAX {
+                *h = f64::INFINITY;
+            }
+        });
         // The floor wins over the gradation at the spot itself: refinement stops there even
         // when a neighbour asks for smaller elements.
         hold_floor(&mut nodal);
