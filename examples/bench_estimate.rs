@@ -139,6 +139,8 @@ fn estimate(path: &Path, kind: ElementKind) {
     let computed = hone::estimate::Computed {
         recovered,
         estimate: est,
+        adjacency,
+        boundary,
     };
     let read_estimate = total.elapsed().as_secs_f64();
     let out = path.with_extension("annotated.vtu");

@@ -12,7 +12,7 @@ use crate::mesh::Model;
 use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
 use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv, ElementRows};
 use crate::report::{percent, PlanReport, SpotLine};
-use crate::singular::{screen, PoissonRatio, ScreeningOptions};
+use crate::singular::{screen_with, PoissonRatio, ScreeningOptions};
 use anyhow::{bail, Context, Result};
 use std::path::{Path, PathBuf};
 
@@ -174,7 +174,8 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     stages.stage("screening for singular spots");
     let mut options = ScreeningOptions::new(mode, PoissonRatio::from_materials(&map));
     options.user_points = user_points;
-    let screening = screen(&model, &options).with_context(|| format!("screening {file}"))?;
+    let screening = screen_with(&model, &computed.adjacency, &computed.boundary, &options)
+        .with_context(|| format!("screening {file}"))?;
     let mut exponents: Vec<f64> = (0..n).map(|e| mesh.element(e).0.order() as f64).collect();
     let mut singular = vec![false; n];
     let mut flagged = vec![0usize; screening.spots.len()];

@@ -7,7 +7,7 @@ use super::progress::Stages;
 use super::Outcome;
 use crate::io::write_atomically;
 use crate::report::{write_study_svg, StudyReport};
-use crate::singular::{screen, PoissonRatio, ScreeningOptions};
+use crate::singular::{screen_with, PoissonRatio, ScreeningOptions};
 use crate::study::{analyse, quantity_specs, sample, MeshSample, Probe, Spot, StudyOptions};
 use anyhow::{bail, Context, Result};
 use std::path::{Path, PathBuf};
@@ -23,7 +23,13 @@ fn sample_file(
     let loaded = load(path, &args.model, RecoveryArg::Spr, stages)?;
     stages.stage("screening for singular spots");
     let options = ScreeningOptions::new(loaded.mode, PoissonRatio::from_materials(&loaded.map));
-    let screening = screen(&loaded.model, &options).with_context(|| format!("screening {file}"))?;
+    let screening = screen_with(
+        &loaded.model,
+        &loaded.computed.adjacency,
+        &loaded.computed.boundary,
+        &options,
+    )
+    .with_context(|| format!("screening {file}"))?;
     let spots = screening
         .spots
         .iter()

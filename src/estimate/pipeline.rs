@@ -16,6 +16,10 @@ pub struct Computed {
     pub recovered: Recovered,
     /// Error indicators.
     pub estimate: Estimate,
+    /// Elements around each node (kept for later stages, such as the singular screening).
+    pub adjacency: NodeElements,
+    /// Boundary facets of every zone (kept likewise).
+    pub boundary: BoundaryFacets,
 }
 
 /// Why the estimate could not be computed.
@@ -93,5 +97,7 @@ pub fn estimate_model(
     Ok(Computed {
         recovered,
         estimate,
+        adjacency,
+        boundary,
     })
 }

@@ -22,7 +22,7 @@ use crate::mesh::locate::interpolate_with;
 use crate::mesh::{Locator, Mesh, Model};
 use crate::plan::{plan, Plan, PlanError, PlanInput, PlanSettings};
 use crate::recovery::RecoveryMethod;
-use crate::singular::{screen, PoissonRatio, ScreeningOptions, SingularError};
+use crate::singular::{screen_with, PoissonRatio, ScreeningOptions, SingularError};
 use rstar::primitives::GeomWithData;
 use rstar::RTree;
 use std::sync::atomic::{AtomicUsize, Ordering};
@@ -185,7 +185,7 @@ fn plan_on(
         problem.mode,
         PoissonRatio::from_materials(&problem.materials),
     );
-    let screening = screen(model, &options)?;
+    let screening = screen_with(model, &m.computed.adjacency, &m.computed.boundary, &options)?;
     let (exponents, singular): (Vec<f64>, Vec<bool>) = screening
         .element_spot
         .iter()

@@ -51,12 +51,14 @@ pub(crate) fn supports(displacement: &[[f64; 3]]) -> Vec<bool> {
 pub(crate) fn outer_facets(
     mesh: &Mesh,
     adjacency: &NodeElements,
+    boundary: &BoundaryFacets,
     supported: &[bool],
 ) -> Vec<OuterFacet> {
-    let zone_facets = BoundaryFacets::new(mesh, adjacency).facets;
+    let zone_facets = &boundary.facets;
     let one_zone = mesh.zone.windows(2).all(|w| w[0] == w[1]);
     zone_facets
-        .into_par_iter()
+        .par_iter()
+        .copied()
         .filter(|&(e, f)| one_zone || !shared_with_any(mesh, adjacency, e as usize, f as usize))
         .map(|(e, f)| {
             let (kind, nodes) = mesh.element(e as usize);

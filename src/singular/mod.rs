@@ -52,7 +52,7 @@ mod planar;
 mod solid;
 
 use crate::material::{AnalysisMode, MaterialMap};
-use crate::mesh::{Model, NodeElements};
+use crate::mesh::{BoundaryFacets, Model, NodeElements};
 use crate::plan::{kappa_plane_strain, kappa_plane_stress, williams_mode_one};
 use rayon::prelude::*;
 use std::collections::BTreeMap;
@@ -376,17 +376,30 @@ impl BoundaryAngles {
 /// 0 to 90 deg, a Poisson ratio missing or out of range where a clamped-free spot needs it, a
 /// non-finite user point, or user points on a mesh without elements.
 pub fn screen(model: &Model, options: &ScreeningOptions) -> Result<Screening, SingularError> {
+    check_input(model, options)?;
+    let adjacency = NodeElements::new(&model.mesh);
+    let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
+    screen_with(model, &adjacency, &boundary, options)
+}
+
+/// [`screen`] with the node-to-element adjacency and the zone boundary facets the estimate has
+/// already built (`estimate::Computed` keeps them), which saves rebuilding them.
+pub fn screen_with(
+    model: &Model,
+    adjacency: &NodeElements,
+    boundary: &BoundaryFacets,
+    options: &ScreeningOptions,
+) -> Result<Screening, SingularError> {
     let mesh = &model.mesh;
     check_input(model, options)?;
-    let adjacency = NodeElements::new(mesh);
     let ctx = Context {
         mesh,
-        adjacency: &adjacency,
+        adjacency,
         tolerance: options.angle_tolerance_deg.to_radians(),
         options,
     };
     let supported = boundary::supports(&model.displacement);
-    let facets = boundary::outer_facets(mesh, &adjacency, &supported);
+    let facets = boundary::outer_facets(mesh, adjacency, boundary, &supported);
     let (mut spots, angles) = if mesh.dimension == 3 {
         solid::screen_edges(&ctx, &facets)?
     } else {
