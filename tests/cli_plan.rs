@@ -24,18 +24,20 @@ fn kirsch_file(dir: &Path) -> PathBuf {
     path
 }
 
-fn plate_args<'a>(file: &'a str, extra: &[&'a str]) -> Vec<&'a str> {
-    let mut v = vec![
-        "plan",
-        file,
-        "--youngs",
-        "200000",
-        "--poisson",
-        "0.3",
-        "--plane-stress",
-    ];
+/// Material and mode of the Kirsch plate and of the L-shape results.
+const PLATE: [&str; 5] = ["--youngs", "200000", "--poisson", "0.3", "--plane-stress"];
+const L_SHAPE: [&str; 5] = ["--youngs", "1", "--poisson", "0.3", "--plane-strain"];
+
+/// `plan FILE MATERIAL... EXTRA...`.
+fn plan_args<'a>(file: &'a str, material: &[&'a str], extra: &[&'a str]) -> Vec<&'a str> {
+    let mut v = vec!["plan", file];
+    v.extend_from_slice(material);
     v.extend_from_slice(extra);
     v
+}
+
+fn plate_args<'a>(file: &'a str, extra: &[&'a str]) -> Vec<&'a str> {
+    plan_args(file, &PLATE, extra)
 }
 
 #[test]
@@ -245,20 +247,18 @@ fn l_shape_corner_is_a_singular_point() {
     let path = dir.join("lshape.vtu");
     write_results(&path, &solved.model.mesh, &solved.model.displacement, false).expect("writes");
     let out_dir = dir.join("out");
-    let o = hone(&[
-        "plan",
-        path.to_str().unwrap(),
-        "--youngs",
-        "1",
-        "--poisson",
-        "0.3",
-        "--plane-strain",
-        "--target-error",
-        "2",
-        "--json",
-        "--out-dir",
-        out_dir.to_str().unwrap(),
-    ]);
+    let file = path.to_str().unwrap();
+    let o = hone(&plan_args(
+        file,
+        &L_SHAPE,
+        &[
+            "--target-error",
+            "2",
+            "--json",
+            "--out-dir",
+            out_dir.to_str().unwrap(),
+        ],
+    ));
     assert!(
         o.status.code().unwrap() < 2,
         "{}",
@@ -286,17 +286,7 @@ fn l_shape_corner_is_a_singular_point() {
         .count();
     assert!(flagged > 0 && flagged < 10, "{flagged} elements flagged");
 
-    let o = hone(&[
-        "plan",
-        path.to_str().unwrap(),
-        "--youngs",
-        "1",
-        "--poisson",
-        "0.3",
-        "--plane-strain",
-        "--singular",
-        "1,x",
-    ]);
+    let o = hone(&plan_args(file, &L_SHAPE, &["--singular", "1,x"]));
     assert_eq!(o.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&o.stderr).contains("--singular"));
 }
