@@ -27,11 +27,6 @@ fn compute(
         .map_err(|e| anyhow!("{file}: {e}"))
 }
 
-/// Mean length of the element's vertex-to-vertex edges (the glossary's `size_now`).
-pub fn size_now(model: &Model) -> Vec<f64> {
-    model.mesh.size_now()
-}
-
 /// A results file read, checked and estimated: what `estimate` and `plan` both start from.
 pub(super) struct Loaded {
     pub model: Model,
@@ -200,7 +195,7 @@ pub fn write_annotated(
     let error_energy: Vec<f64> = (0..n).map(|e| est.error_energy(e)).collect();
     let error_share: Vec<f64> = (0..n).map(|e| est.error_share(e)).collect();
     let error_density: Vec<f64> = (0..n).map(|e| est.error_density(e)).collect();
-    let sizes = size_now(model);
+    let sizes = model.mesh.size_now();
     let options = WriteOptions {
         encoding: if ascii {
             Encoding::Ascii

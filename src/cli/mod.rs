@@ -5,7 +5,7 @@
 pub mod args;
 mod demo;
 mod estimate;
-pub use estimate::{size_now, write_annotated};
+pub use estimate::write_annotated;
 mod inspect;
 mod model_options;
 mod plan;

@@ -5,7 +5,7 @@ use super::estimate::{load, write_annotated, Loaded};
 use super::progress::Stages;
 use super::Outcome;
 use crate::io::{
-    cells_in_file_order, write_atomically, write_medit_size_field, write_msh_size_field,
+    file_order, write_atomically, write_medit_size_field, write_msh_size_field,
     write_pos_size_field, Field, FieldValues,
 };
 use crate::mesh::Model;
@@ -360,7 +360,7 @@ fn write_plan_files(
 ) -> Result<()> {
     let mesh = &model.mesh;
     let n = mesh.element_count();
-    let order = cells_in_file_order(mesh).order;
+    let order = file_order(mesh);
     let error_energy: Vec<f64> = (0..n).map(|e| est.error_energy(e)).collect();
     let error_share: Vec<f64> = (0..n).map(|e| est.error_share(e)).collect();
     let rows = ElementRows {

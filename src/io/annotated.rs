@@ -38,10 +38,17 @@ pub struct CellArrays {
     pub types: Vec<u8>,
 }
 
-/// Lays out the cells of `mesh` for writing, sorted by their index in the input file.
-pub fn cells_in_file_order(mesh: &Mesh) -> CellArrays {
+/// The elements of `mesh` sorted by their index in the input file (the order every written
+/// table and cell array follows).
+pub fn file_order(mesh: &Mesh) -> Vec<usize> {
     let mut order: Vec<usize> = (0..mesh.element_count()).collect();
     order.sort_by_key(|&e| mesh.file_cell[e]);
+    order
+}
+
+/// Lays out the cells of `mesh` for writing, sorted by their index in the input file.
+pub fn cells_in_file_order(mesh: &Mesh) -> CellArrays {
+    let order = file_order(mesh);
     let mut connectivity = Vec::new();
     let mut offsets = Vec::with_capacity(order.len());
     let mut types = Vec::with_capacity(order.len());

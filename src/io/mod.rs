@@ -61,5 +61,7 @@ pub use write::{write_vtu, ArrayData, ArrayView, Encoding, GridView, WriteOption
 
 mod annotated;
 mod model;
-pub use annotated::{cells_in_file_order, write_model_vtu, CellArrays, Field, FieldValues};
+pub use annotated::{
+    cells_in_file_order, file_order, write_model_vtu, CellArrays, Field, FieldValues,
+};
 pub use model::{build_model, ModelError, ModelNotes, ModelOptions, USUAL_DISPLACEMENT_NAMES};

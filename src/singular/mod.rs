@@ -379,7 +379,7 @@ pub fn screen(model: &Model, options: &ScreeningOptions) -> Result<Screening, Si
     check_input(model, options)?;
     let adjacency = NodeElements::new(&model.mesh);
     let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
-    screen_with(model, &adjacency, &boundary, options)
+    screen_checked(model, &adjacency, &boundary, options)
 }
 
 /// [`screen`] with the node-to-element adjacency and the zone boundary facets the estimate has
@@ -390,8 +390,18 @@ pub fn screen_with(
     boundary: &BoundaryFacets,
     options: &ScreeningOptions,
 ) -> Result<Screening, SingularError> {
-    let mesh = &model.mesh;
     check_input(model, options)?;
+    screen_checked(model, adjacency, boundary, options)
+}
+
+/// The screening proper, on input [`check_input`] has accepted.
+fn screen_checked(
+    model: &Model,
+    adjacency: &NodeElements,
+    boundary: &BoundaryFacets,
+    options: &ScreeningOptions,
+) -> Result<Screening, SingularError> {
+    let mesh = &model.mesh;
     let ctx = Context {
         mesh,
         adjacency,
