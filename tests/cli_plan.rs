@@ -24,6 +24,16 @@ fn kirsch_file(dir: &Path) -> PathBuf {
     path
 }
 
+/// The JSON summary of a run that finished (exit 0 or 1).
+fn summary(o: &Output) -> serde_json::Value {
+    assert!(
+        o.status.code().unwrap() < 2,
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    serde_json::from_slice(&o.stdout).expect("one JSON object")
+}
+
 /// Material and mode of the Kirsch plate and of the L-shape results.
 const PLATE: [&str; 5] = ["--youngs", "200000", "--poisson", "0.3", "--plane-stress"];
 const L_SHAPE: [&str; 5] = ["--youngs", "1", "--poisson", "0.3", "--plane-strain"];
@@ -56,12 +66,7 @@ fn plan_json_summary_and_files() {
             out_dir.to_str().unwrap(),
         ],
     ));
-    assert!(
-        o.status.code().unwrap() < 2,
-        "{}",
-        String::from_utf8_lossy(&o.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("one JSON object");
+    let v = summary(&o);
     for key in [
         "relative_error",
         "target_error",
@@ -259,12 +264,7 @@ fn l_shape_corner_is_a_singular_point() {
             out_dir.to_str().unwrap(),
         ],
     ));
-    assert!(
-        o.status.code().unwrap() < 2,
-        "{}",
-        String::from_utf8_lossy(&o.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("JSON");
+    let v = summary(&o);
     let spots = v["singular_points"].as_array().unwrap();
     let corners: Vec<&serde_json::Value> = spots
         .iter()
