@@ -159,8 +159,8 @@ fn absurd_counts_are_refused_before_allocation() {
 #[test]
 fn truncated_appended_data_names_array_and_bytes() {
     let bytes = written(Encoding::AppendedRaw, HeaderType::UInt32, None);
-    // The file ends with the 20-byte offsets block ([4-byte length][2 x Int64]), the 6-byte
-    // types block and 29 bytes of closing tags: cutting 40 bytes ends inside offsets.
+    // The file ends with the 12-byte offsets block ([4-byte length][2 x Int32]), the 6-byte
+    // types block and the closing tags: cutting 40 bytes ends inside the offsets.
     let end = bytes.len() - 40;
     let (e, m) = {
         let e = read_vtu_bytes(&bytes[..end], "model.vtu").unwrap_err();
@@ -168,7 +168,7 @@ fn truncated_appended_data_names_array_and_bytes() {
         (e, m)
     };
     assert!(matches!(e, IoError::Truncated { .. }), "{m}");
-    assert!(m.starts_with(&format!("model.vtu: appended data ends at byte {end}, array 'offsets' (Cells) needs bytes {}..{} (truncated file?)", end - 12, end + 4)), "{m}");
+    assert!(m.starts_with(&format!("model.vtu: appended data ends at byte {end}, array 'offsets' (Cells) needs bytes {}..{} (truncated file?)", end - 4, end + 4)), "{m}");
     assert!(m.ends_with("(truncated file?)"), "{m}");
     // Cut inside the XML part.
     let m = read_vtu_bytes(&bytes[..200], "model.vtu")

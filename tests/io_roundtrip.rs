@@ -267,4 +267,11 @@ fn atomic_write_replaces_target_and_protects_input() {
         &hone::io::read_results(&out).unwrap(),
         "atomic via read_results",
     );
+    // With the disk flush on (`--sync`) the same write replaces the file in full.
+    hone::io::set_sync_outputs(true);
+    let synced = write_atomically(&out, Some(&input), |w| w.write_all(&bytes));
+    hone::io::set_sync_outputs(false);
+    synced.unwrap();
+    assert_eq!(std::fs::read(&out).unwrap(), bytes);
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 2);
 }

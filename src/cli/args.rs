@@ -14,6 +14,11 @@ pub struct Cli {
     /// No progress display.
     #[arg(long, global = true)]
     pub quiet: bool,
+    /// Flush every output file to the disk before it is renamed into place, so it survives a
+    /// power cut right after the run (slower on big files). Without it outputs are still never
+    /// left half-written by a failed run.
+    #[arg(long, global = true)]
+    pub sync: bool,
     /// Worker threads (default: all cores). Results are identical for any count.
     #[arg(long, global = true, value_name = "N")]
     pub threads: Option<usize>,

@@ -86,6 +86,7 @@ pub fn run(cli: Cli) -> Result<Outcome> {
             .num_threads(threads)
             .build_global();
     }
+    crate::io::set_sync_outputs(cli.sync);
     match cli.command {
         Command::Inspect(a) => inspect::run(&a, cli.json),
         Command::Estimate(a) => estimate::run(&a, cli.json, cli.quiet),

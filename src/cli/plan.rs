@@ -4,9 +4,10 @@ use super::args::PlanArgs;
 use super::estimate::{load, write_annotated, Loaded};
 use super::progress::Stages;
 use super::Outcome;
+use crate::io::text_out::{check_sizes, NodeText};
 use crate::io::{
-    file_order, write_atomically, write_medit_size_field, write_msh_size_field,
-    write_pos_size_field, Field, FieldValues,
+    file_order, write_atomically, write_medit_text, write_msh_text, write_pos_text, Field,
+    FieldValues,
 };
 use crate::mesh::Model;
 use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
@@ -374,6 +375,9 @@ fn write_plan_files(
         singular_zone,
     };
     let sizes = &the_plan.nodal_size;
+    check_sizes(&files[4].display().to_string(), mesh.node_count(), sizes)?;
+    // Coordinates and sizes are formatted once for the four text files that print them.
+    let nodes = NodeText::new(&mesh.points, sizes);
     let context = |i: usize| format!("writing {}", files[i].display());
     // The files are written side by side: formatting (rayon) overlaps the disk writes and
     // syncs of the others. Each file is still written atomically and byte-identically.
@@ -390,22 +394,18 @@ fn write_plan_files(
                     .with_context(|| context(1))
             }),
             scope.spawn(|| {
-                write_atomically(&files[2], Some(input), |w| {
-                    write_sizes_csv(w, &mesh.points, sizes)
-                })
-                .with_context(|| context(2))
+                write_atomically(&files[2], Some(input), |w| write_sizes_csv(w, &nodes))
+                    .with_context(|| context(2))
             }),
             scope.spawn(|| {
-                write_pos_size_field(&files[4], Some(input), mesh, sizes)
-                    .with_context(|| context(4))
+                write_pos_text(&files[4], Some(input), mesh, &nodes).with_context(|| context(4))
             }),
             scope.spawn(|| {
-                write_msh_size_field(&files[5], Some(input), mesh, sizes)
-                    .with_context(|| context(5))
+                write_msh_text(&files[5], Some(input), mesh, &nodes).with_context(|| context(5))
             }),
             scope.spawn(annotated),
             scope.spawn(|| {
-                write_medit_size_field(&files[6], &files[7], Some(input), mesh, sizes)
+                write_medit_text(&files[6], &files[7], Some(input), mesh, &nodes)
                     .with_context(|| context(6))
             }),
         ];

@@ -26,6 +26,10 @@ pub(crate) enum Src<'a> {
     U32AsI64(&'a [u32]),
     /// Offsets, written as Int64 (the caller checks they fit).
     U64AsI64(&'a [u64]),
+    /// Point ids, written as Int32 (the caller checks they fit).
+    U32AsI32(&'a [u32]),
+    /// Offsets, written as Int32 (the caller checks they fit).
+    U64AsI32(&'a [u64]),
 }
 
 /// Values converted per step when streaming.
@@ -42,6 +46,8 @@ impl Src<'_> {
             Src::U8(s) => s.len(),
             Src::U32AsI64(s) => s.len(),
             Src::U64AsI64(s) => s.len(),
+            Src::U32AsI32(s) => s.len(),
+            Src::U64AsI32(s) => s.len(),
         }
     }
 
@@ -50,7 +56,7 @@ impl Src<'_> {
         match self {
             Src::F64(_) => ScalarType::Float64,
             Src::F32(_) => ScalarType::Float32,
-            Src::I32(_) => ScalarType::Int32,
+            Src::I32(_) | Src::U32AsI32(_) | Src::U64AsI32(_) => ScalarType::Int32,
             Src::I64(_) | Src::U32AsI64(_) | Src::U64AsI64(_) => ScalarType::Int64,
             Src::U8(_) => ScalarType::UInt8,
         }
@@ -88,6 +94,8 @@ impl Src<'_> {
             Src::U8(s) => put!(s, |v: u8| v, true),
             Src::U32AsI64(s) => put!(s, |v: u32| v as i64, false),
             Src::U64AsI64(s) => put!(s, |v: u64| v as i64, false),
+            Src::U32AsI32(s) => put!(s, |v: u32| v as i32, false),
+            Src::U64AsI32(s) => put!(s, |v: u64| v as i32, false),
         }
     }
 
@@ -102,6 +110,8 @@ impl Src<'_> {
             Src::U8(s) => write!(out, "{}", s[i]),
             Src::U32AsI64(s) => write!(out, "{}", s[i]),
             Src::U64AsI64(s) => write!(out, "{}", s[i]),
+            Src::U32AsI32(s) => write!(out, "{}", s[i]),
+            Src::U64AsI32(s) => write!(out, "{}", s[i]),
         };
     }
 }

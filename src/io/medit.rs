@@ -3,7 +3,7 @@
 use std::path::Path;
 
 use super::error::IoError;
-use super::text_out::{check_sizes, push_f64, push_int, write_chunked};
+use super::text_out::{check_sizes, push_int, write_chunked, NodeText};
 use super::write_atomically;
 use crate::element::ElementKind;
 use crate::mesh::Mesh;
@@ -40,6 +40,23 @@ pub fn write_medit_size_field(
     sizes: &[f64],
 ) -> Result<(), IoError> {
     check_sizes(&sol_path.display().to_string(), mesh.node_count(), sizes)?;
+    write_medit_text(
+        mesh_path,
+        sol_path,
+        protect,
+        mesh,
+        &NodeText::new(&mesh.points, sizes),
+    )
+}
+
+/// [`write_medit_size_field`] with the numbers already formatted (sizes checked by the caller).
+pub(crate) fn write_medit_text(
+    mesh_path: &Path,
+    sol_path: &Path,
+    protect: Option<&Path>,
+    mesh: &Mesh,
+    text: &NodeText,
+) -> Result<(), IoError> {
     // Corner nodes, numbered 1.. in node order (0 = not a corner).
     let mut number = vec![0u32; mesh.node_count()];
     for b in &mesh.blocks {
@@ -64,9 +81,8 @@ pub fn write_medit_size_field(
         w.write_all(format!("Vertices\n{}\n", corners.len()).as_bytes())?;
         write_chunked(w, corners.len(), |r, buf| {
             for &v in &corners[r] {
-                let p = mesh.points[v as usize];
-                for x in &p[..dim] {
-                    push_f64(buf, *x);
+                for c in 0..dim {
+                    text.push_coord(buf, v as usize, c);
                     buf.push(b' ');
                 }
                 buf.extend_from_slice(b"0\n");
@@ -111,7 +127,7 @@ pub fn write_medit_size_field(
         w.write_all(format!("SolAtVertices\n{}\n1 1\n\n", corners.len()).as_bytes())?;
         write_chunked(w, corners.len(), |r, buf| {
             for &v in &corners[r] {
-                push_f64(buf, sizes[v as usize]);
+                text.push_size(buf, v as usize);
                 buf.push(b'\n');
             }
         })?;

@@ -24,8 +24,8 @@
 //!
 //! # Writing ([`write_vtu`], [`write_atomically`])
 //! All four [`Encoding`]s, both header types, both byte orders, optional zlib compression in
-//! blocks as VTK writes them. Connectivity and offsets are written as Int64, types as UInt8,
-//! points as 3-component Float64.
+//! blocks as VTK writes them. Connectivity and offsets are written as Int32 when they fit (else
+//! Int64), types as UInt8, points as 3-component Float64.
 
 #![warn(missing_docs)]
 
@@ -48,11 +48,14 @@ pub(crate) mod text_out;
 mod write;
 mod xml;
 
-pub use atomic::write_atomically;
+pub use atomic::{set_sync_outputs, write_atomically};
 pub use error::IoError;
 pub use grid::{DataArray, RawGrid};
 pub use medit::write_medit_size_field;
+pub(crate) use medit::write_medit_text;
+pub(crate) use msh::write_msh_text;
 pub use msh::{read_msh, read_msh_bytes, write_msh_size_field};
+pub(crate) use pos::write_pos_text;
 pub use pos::{read_pos_view, read_pos_views_bytes, write_pos_size_field, PosEntry, PosView};
 pub use pvtu::{read_pvtu, GLOBAL_ID_NAMES, MERGE_TOLERANCE};
 pub use read_vtu::{read_results, read_vtu, read_vtu_bytes};

@@ -40,7 +40,7 @@ use super::gmsh_types::{gmsh_number, gmsh_type, vtk_to_gmsh, GmshType};
 use super::grid::{DataArray, RawGrid};
 use super::read_vtu::with_mapped_file;
 use super::scalar::ScalarType;
-use super::text_out::{check_sizes, push_f64, push_int, write_chunked};
+use super::text_out::{check_sizes, push_int, write_chunked, NodeText};
 use super::write_atomically;
 use crate::mesh::Mesh;
 
@@ -1039,8 +1039,17 @@ pub fn write_msh_size_field(
     mesh: &Mesh,
     sizes: &[f64],
 ) -> Result<(), IoError> {
-    let shown = path.display().to_string();
-    check_sizes(&shown, mesh.node_count(), sizes)?;
+    check_sizes(&path.display().to_string(), mesh.node_count(), sizes)?;
+    write_msh_text(path, protect, mesh, &NodeText::new(&mesh.points, sizes))
+}
+
+/// [`write_msh_size_field`] with the numbers already formatted (sizes checked by the caller).
+pub(crate) fn write_msh_text(
+    path: &Path,
+    protect: Option<&Path>,
+    mesh: &Mesh,
+    text: &NodeText,
+) -> Result<(), IoError> {
     let n = mesh.node_count();
     let e = mesh.element_count();
     let dim = mesh.dimension;
@@ -1057,12 +1066,12 @@ pub fn write_msh_size_field(
             }
         })?;
         write_chunked(w, n, |r, buf| {
-            for p in &mesh.points[r] {
-                push_f64(buf, p[0]);
+            for i in r {
+                text.push_coord(buf, i, 0);
                 buf.push(b' ');
-                push_f64(buf, p[1]);
+                text.push_coord(buf, i, 1);
                 buf.push(b' ');
-                push_f64(buf, p[2]);
+                text.push_coord(buf, i, 2);
                 buf.push(b'\n');
             }
         })?;
@@ -1099,7 +1108,7 @@ pub fn write_msh_size_field(
             for i in r {
                 push_int(buf, i + 1);
                 buf.push(b' ');
-                push_f64(buf, sizes[i]);
+                text.push_size(buf, i);
                 buf.push(b'\n');
             }
         })?;

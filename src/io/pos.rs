@@ -17,7 +17,7 @@
 use std::path::Path;
 
 use super::error::IoError;
-use super::text_out::{check_sizes, push_f64, write_chunked};
+use super::text_out::{check_sizes, push_f64, write_chunked, NodeText};
 use super::write_atomically;
 use crate::element::ElementKind;
 use crate::mesh::Mesh;
@@ -93,7 +93,19 @@ pub fn write_pos_size_field(
     sizes: &[f64],
 ) -> Result<(), IoError> {
     check_sizes(&path.display().to_string(), mesh.node_count(), sizes)?;
+    write_pos_text(path, protect, mesh, &NodeText::new(&mesh.points, sizes))
+}
+
+/// [`write_pos_size_field`] with the numbers already formatted (sizes checked by the caller).
+pub(crate) fn write_pos_text(
+    path: &Path,
+    protect: Option<&Path>,
+    mesh: &Mesh,
+    text: &NodeText,
+) -> Result<(), IoError> {
     let three = mesh.dimension == 3;
+    let mut zero = Vec::new();
+    push_f64(&mut zero, 0.0);
     write_atomically(path, protect, |w| {
         w.write_all(b"View \"size_target\" {\n")?;
         for b in &mesh.blocks {
@@ -106,22 +118,25 @@ pub fn write_pos_size_field(
                         let corners = if three { &s[..] } else { &s[..3] };
                         buf.extend_from_slice(if three { b"SS(" } else { b"ST(" });
                         for (j, &v) in corners.iter().enumerate() {
-                            let p = mesh.points[v as usize];
                             if j > 0 {
                                 buf.push(b',');
                             }
-                            push_f64(buf, p[0]);
+                            text.push_coord(buf, v as usize, 0);
                             buf.push(b',');
-                            push_f64(buf, p[1]);
+                            text.push_coord(buf, v as usize, 1);
                             buf.push(b',');
-                            push_f64(buf, if three { p[2] } else { 0.0 });
+                            if three {
+                                text.push_coord(buf, v as usize, 2);
+                            } else {
+                                buf.extend_from_slice(&zero);
+                            }
                         }
                         buf.extend_from_slice(b"){");
                         for (j, &v) in corners.iter().enumerate() {
                             if j > 0 {
                                 buf.push(b',');
                             }
-                            push_f64(buf, sizes[v as usize]);
+                            text.push_size(buf, v as usize);
                         }
                         buf.extend_from_slice(b"};\n");
                     }

@@ -77,9 +77,9 @@ pub struct ArrayView<'a> {
 pub struct GridView<'a> {
     /// Point coordinates (written as Float64, 3 components).
     pub points: &'a [[f64; 3]],
-    /// Point ids of all cells (written as Int64).
+    /// Point ids of all cells (written as Int32 when every id and offset fits, else Int64).
     pub connectivity: &'a [u32],
-    /// End offset of each cell (written as Int64).
+    /// End offset of each cell (Int32 or Int64 with the connectivity).
     pub offsets: &'a [u64],
     /// VTK cell type ids (written as UInt8).
     pub types: &'a [u8],
@@ -205,7 +205,9 @@ fn escape(s: &str) -> String {
 
 /// Writes `grid` as a VTK XML UnstructuredGrid (one piece) to `w`.
 ///
-/// Connectivity and offsets are written as Int64, types as UInt8, points as 3-component
+/// Connectivity and offsets are written as Int32 when the point count and the connectivity
+/// length fit (every VTK reader takes either; half the bytes of the biggest array), else as
+/// Int64; types as UInt8, points as 3-component
 /// Float64; point and cell arrays keep their order. Output is buffered internally. Fails with
 /// `InvalidInput` when the view is inconsistent (array lengths, offsets).
 pub fn write_vtu<W: Write>(w: W, grid: &GridView, opts: &WriteOptions) -> io::Result<()> {
@@ -222,16 +224,26 @@ pub fn write_vtu<W: Write>(w: W, grid: &GridView, opts: &WriteOptions) -> io::Re
         components: 3,
         src: Src::F64(bytemuck::cast_slice(grid.points)),
     }];
+    let narrow =
+        i32::try_from(grid.points.len()).is_ok() && i32::try_from(grid.connectivity.len()).is_ok();
     let cells = [
         Entry {
             name: "connectivity",
             components: 1,
-            src: Src::U32AsI64(grid.connectivity),
+            src: if narrow {
+                Src::U32AsI32(grid.connectivity)
+            } else {
+                Src::U32AsI64(grid.connectivity)
+            },
         },
         Entry {
             name: "offsets",
             components: 1,
-            src: Src::U64AsI64(grid.offsets),
+            src: if narrow {
+                Src::U64AsI32(grid.offsets)
+            } else {
+                Src::U64AsI64(grid.offsets)
+            },
         },
         Entry {
             name: "types",

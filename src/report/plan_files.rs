@@ -3,7 +3,7 @@
 //! chunks and written in order, so big meshes write fast and the bytes never depend on the
 //! number of threads. Numbers use the shortest round-trip form.
 
-use crate::io::text_out::{push_f64, push_int, write_chunked};
+use crate::io::text_out::{push_f64, push_int, write_chunked, NodeText};
 use serde_json::Value;
 use std::io::{self, Write};
 
@@ -40,15 +40,15 @@ fn push_row(out: &mut Vec<u8>, rows: &ElementRows, e: usize, json: bool) {
     ];
     let key = |out: &mut Vec<u8>, k: &str| {
         if json {
-            out.extend_from_slice(b", \"");
+            out.extend_from_slice(b",\"");
             out.extend_from_slice(k.as_bytes());
-            out.extend_from_slice(b"\": ");
+            out.extend_from_slice(b"\":");
         } else {
             out.push(b',');
         }
     };
     if json {
-        out.extend_from_slice(b"{\"id\": ");
+        out.extend_from_slice(b"{\"id\":");
     }
     push_int(out, rows.id[e]);
     for (k, v) in &fields[..2] {
@@ -68,8 +68,9 @@ fn push_row(out: &mut Vec<u8>, rows: &ElementRows, e: usize, json: bool) {
     }
 }
 
-/// `plan.json`: `{"summary": {...}, "elements": [{"id": .., "error_energy": .., "error_share": ..,
-/// "refine_mark": .., "size_now": .., "size_target": .., "singular_zone": ..}, ...]}`.
+/// `plan.json`: `{"summary": {...}, "elements": [{"id":..,"error_energy":..,"error_share":..,
+/// "refine_mark":..,"size_now":..,"size_target":..,"singular_zone":..}, ...]}`, one element per
+/// line without spaces (a million-element plan is a file for programs).
 pub fn write_plan_json(w: &mut dyn Write, summary: &Value, rows: &ElementRows) -> io::Result<()> {
     w.write_all(b"{\n\"summary\": ")?;
     serde_json::to_writer_pretty(&mut *w, summary)?;
@@ -95,16 +96,16 @@ pub fn write_plan_csv(w: &mut dyn Write, rows: &ElementRows) -> io::Result<()> {
     })
 }
 
-/// `sizes.csv`: `x,y,z,size` per node, in node order.
-pub fn write_sizes_csv(w: &mut dyn Write, points: &[[f64; 3]], sizes: &[f64]) -> io::Result<()> {
+/// `sizes.csv`: `x,y,z,size` per node, in node order, from the plan's formatted node numbers.
+pub(crate) fn write_sizes_csv(w: &mut dyn Write, nodes: &NodeText) -> io::Result<()> {
     w.write_all(b"x,y,z,size\n")?;
-    write_chunked(w, points.len(), |range, out| {
+    write_chunked(w, nodes.len(), |range, out| {
         for i in range {
-            for v in points[i] {
-                push_f64(out, v);
+            for c in 0..3 {
+                nodes.push_coord(out, i, c);
                 out.push(b',');
             }
-            push_f64(out, sizes[i]);
+            nodes.push_size(out, i);
             out.push(b'\n');
         }
     })
