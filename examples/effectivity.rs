@@ -41,6 +41,7 @@ fn main() {
         (problems::lame_plane_strain, &two_d, 2),
         (problems::lame_axisymmetric, &two_d, 2),
         (problems::l_shape, &two_d, 2),
+        (problems::l_shape_graded, &two_d, 2),
         (problems::lame_solid, &three_d, 2),
         (problems::manufactured_box, &three_d, 2),
     ];

@@ -14,7 +14,7 @@
 use hone::element::ElementKind;
 use hone::mesh::{check_geometry, Mesh};
 use hone::reference::meshes::{
-    l_shape, measure, merge_coincident, plate_with_hole, quarter_annulus,
+    l_shape, l_shape_graded, measure, merge_coincident, plate_with_hole, quarter_annulus,
 };
 use std::f64::consts::PI;
 
@@ -234,4 +234,46 @@ fn merge_coincident_respects_the_tolerance() {
         6,
         "zero tolerance merges identical points"
     );
+}
+
+/// The graded L-shape covers the same region with the same nodes and elements; corner elements
+/// shrink by the grading (the corner cell's vertex at (h, h) moves to h^gamma (h, h) / w^(gamma -
+/// 1), elementary algebra of the map) and mid-edge nodes stay at the midpoints of straight edges.
+#[test]
+fn graded_l_shape_keeps_region_and_shrinks_corner_cells() {
+    let (w, n, gamma) = (2.0, 4, 2.0);
+    for kind in KINDS_2D {
+        let (uniform, mesh) = (l_shape(kind, w, n), l_shape_graded(kind, w, n, gamma));
+        let what = format!("graded L-shape {kind}");
+        assert!(check_geometry(&mesh).is_empty(), "{what}: bad elements");
+        assert_close(measure(&mesh), 3.0 * w * w, ROUND_OFF, &what);
+        assert_eq!(mesh.node_count(), uniform.node_count(), "{what}");
+        assert_eq!(mesh.element_count(), uniform.element_count(), "{what}");
+        let h = w / n as f64;
+        let expected = h.powf(gamma) / w.powf(gamma - 1.0);
+        assert!(
+            mesh.points
+                .iter()
+                .any(|p| relative(p[0], expected) < ROUND_OFF
+                    && relative(p[1], expected) < ROUND_OFF),
+            "{what}: no vertex at ({expected}, {expected})"
+        );
+        let block = &mesh.blocks[0];
+        for i in 0..block.len() {
+            let cell = block.cell(i);
+            for (edge, &mid) in kind.edges().iter().zip(kind.edge_mid_nodes()) {
+                let (a, b, m) = (
+                    mesh.points[cell[edge[0]] as usize],
+                    mesh.points[cell[edge[1]] as usize],
+                    mesh.points[cell[mid] as usize],
+                );
+                for c in 0..2 {
+                    assert!(
+                        (m[c] - 0.5 * (a[c] + b[c])).abs() <= ROUND_OFF * w,
+                        "{what}: cell {i} mid node off its edge"
+                    );
+                }
+            }
+        }
+    }
 }

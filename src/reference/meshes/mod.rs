@@ -26,6 +26,6 @@ mod triangulate;
 pub use domain::{Domain, Loop, Segment, MAX_ARC_STEP};
 pub use error::{LoopId, MeshError};
 pub use extrude::extrude;
-pub use mapped::{l_shape, plate_with_hole, quarter_annulus};
+pub use mapped::{l_shape, l_shape_graded, plate_with_hole, quarter_annulus};
 pub use merge::{measure, merge_coincident};
 pub use triangulate::{triangulate, MesherOptions};

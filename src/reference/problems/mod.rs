@@ -14,7 +14,9 @@ mod manufactured;
 
 pub use cantilever::cantilever;
 pub use kirsch::{kirsch, kirsch_domain, kirsch_on};
-pub use l_shape::{l_shape, l_shape_domain, l_shape_on, WILLIAMS_LAMBDA_270};
+pub use l_shape::{
+    l_shape, l_shape_domain, l_shape_graded, l_shape_on, L_SHAPE_GRADING, WILLIAMS_LAMBDA_270,
+};
 pub use lame::{lame_axisymmetric, lame_plane_strain, lame_solid};
 pub use manufactured::manufactured_box;
 
