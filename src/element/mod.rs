@@ -12,6 +12,7 @@
 //! (`triangle.rs`, `quadrilateral.rs`, `tetrahedron.rs`, `hexahedron.rs`, `wedge.rs`); the single
 //! `match` in `ElementKind::info` is the only place that dispatches on the kind.
 
+pub mod gauss;
 mod geometry;
 mod hexahedron;
 mod patch_basis;

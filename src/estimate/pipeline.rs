@@ -5,8 +5,10 @@ use super::{estimate, Estimate};
 use crate::material::{AnalysisMode, MaterialMap};
 use crate::mesh::{BadElement, BadElementKind, BoundaryFacets, Model, NodeElements};
 use crate::recovery::{
-    recover, sample_stresses, ElementMaterials, MissingZoneMaterial, Recovered, RecoveryMethod,
+    fit_corner, recover, sample_stresses, CornerField, ElementMaterials, MissingZoneMaterial,
+    Recovered, RecoveryMethod, SampledStresses,
 };
+use crate::singular::{screen_with, PoissonRatio, ScreeningOptions, SpotKind};
 use thiserror::Error;
 
 /// Recovered stresses and indicators of one model.
@@ -20,6 +22,9 @@ pub struct Computed {
     pub adjacency: NodeElements,
     /// Boundary facets of every zone (kept likewise).
     pub boundary: BoundaryFacets,
+    /// Re-entrant corners whose elements use the fitted singular + smooth field (plane models
+    /// with SPR; empty otherwise).
+    pub corners: Vec<CornerField>,
 }
 
 /// Why the estimate could not be computed.
@@ -91,13 +96,70 @@ pub fn estimate_model(
     let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
     stage("stress recovery");
     let recovered = recover(model, &materials, &samples, &adjacency, &boundary, method);
+    let corners = if method == RecoveryMethod::Spr {
+        corner_fields(model, map, &materials, &samples, &adjacency, &boundary)
+    } else {
+        Vec::new()
+    };
     drop(samples);
     stage("error indicators");
-    let estimate = estimate(model, &materials, &recovered).map_err(EstimateError::BadElements)?;
+    let estimate =
+        estimate(model, &materials, &recovered, &corners).map_err(EstimateError::BadElements)?;
     Ok(Computed {
         recovered,
         estimate,
         adjacency,
         boundary,
+        corners,
     })
+}
+
+/// Fits the field of every re-entrant corner of a plane model (the singular screening's
+/// corners; none in 3D or axisymmetric models, or when the screening cannot run, in which case
+/// the corners keep plain SPR).
+fn corner_fields(
+    model: &Model,
+    map: &MaterialMap,
+    materials: &ElementMaterials,
+    samples: &SampledStresses,
+    adjacency: &NodeElements,
+    boundary: &BoundaryFacets,
+) -> Vec<CornerField> {
+    let mode = materials.mode;
+    if !matches!(
+        mode,
+        AnalysisMode::PlaneStrain | AnalysisMode::PlaneStress { .. }
+    ) {
+        return Vec::new();
+    }
+    let options = ScreeningOptions::new(mode, PoissonRatio::from_materials(map));
+    let Ok(screening) = screen_with(model, adjacency, boundary, &options) else {
+        return Vec::new();
+    };
+    screening
+        .spots
+        .iter()
+        .filter(|s| s.kind == SpotKind::ReentrantCorner && s.nodes.len() == 1)
+        .filter_map(|s| {
+            let node = s.nodes[0];
+            let first = *adjacency.of(node as usize).first()? as usize;
+            // sigma_zz = nu (sigma_xx + sigma_yy) in plane strain, with nu = D01 / (D00 + D01).
+            let zz = match mode {
+                AnalysisMode::PlaneStrain => {
+                    let d = &materials.of(first).stiffness;
+                    d[0][1] / (d[0][0] + d[0][1])
+                }
+                _ => 0.0,
+            };
+            fit_corner(
+                &model.mesh,
+                mode,
+                zz,
+                samples,
+                adjacency,
+                node,
+                s.angle_deg.to_radians(),
+            )
+        })
+        .collect()
 }

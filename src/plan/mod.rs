@@ -15,30 +15,28 @@
 //!   the optimal sizes with per-element exponents (sheet 3.4).
 //! - [`marking`]: Dorfler bulk marking, the Babuska-Rheinboldt maximum strategy and a fixed
 //!   fraction (sheet 3.6).
-//! - [`williams`]: smallest Williams exponent of a traction-free corner (sheet 4.1).
-//! - [`clamped`]: smallest exponent of a clamped-free corner (sheet 4.2).
+//! - The corner exponents (Williams, sheet 4.1; clamped-free, sheet 4.2) live in
+//!   [`crate::singular`] and are re-exported here.
 //! - [`field`]: the nodal size field and the element count a mesher will make from it.
 //! - [`planner`]: goals, limits and strategies put together into one [`Plan`].
 //! - [`gradation`]: Persson's discrete gradient limiting of a nodal size field (sheet 3.7).
 
-pub mod clamped;
 pub mod field;
 pub mod gradation;
 pub mod marking;
 pub mod planner;
 pub mod size_law;
-pub mod williams;
 
-pub use clamped::{
+pub use crate::singular::clamped::{
     clamped_free_exponent, clamped_free_root, kappa_plane_strain, kappa_plane_stress,
 };
+pub use crate::singular::williams::{corner_exponent, williams_mode_one, williams_mode_two};
 pub use gradation::limit_gradation;
 pub use marking::{dorfler, fraction, maximum};
 pub use planner::{plan, Plan, PlanInput, PlanSettings, Strategy};
 pub use size_law::{
     classic_sizes, optimal_budget, optimal_sizes, optimal_sizes_mixed, ClassicPlan, OptimalPlan,
 };
-pub use williams::{corner_exponent, williams_mode_one, williams_mode_two};
 
 use thiserror::Error;
 

@@ -4,12 +4,14 @@
 //! `Average` is simple nodal averaging of the elements' own stresses at each node, the crudest
 //! form of the 1987 Zienkiewicz-Zhu projection, kept for comparison.
 
+pub mod corner;
 mod fe_stress;
 mod least_squares;
 mod materials;
 mod slots;
 mod spr;
 
+pub use corner::{fit_corner, CornerField};
 pub use fe_stress::{sample_stresses, ElementData, PointStrain, SampledStresses};
 pub use least_squares::{evaluate as evaluate_patch, fit as fit_polynomial, Sample, MAX_TERMS};
 pub use materials::{ElementMaterials, MissingZoneMaterial};

@@ -21,7 +21,7 @@
 //! - **Clamped-free corners and edges.** A node is a support when its displacement is exactly
 //!   zero in every component; a boundary facet is supported when all its nodes are. Where a
 //!   supported facet meets a free one, lambda solves the clamped-free corner equation for the
-//!   interior angle there (method sheet 4.2, [`crate::plan::clamped`]) with Kolosov's kappa:
+//!   interior angle there (method sheet 4.2, [`clamped`]) with Kolosov's kappa:
 //!   `3 - 4 nu` in plane strain and 3D (the edge's plane-strain cross-section), and also for
 //!   axisymmetric models (their meridian section near a corner is treated like plane strain),
 //!   `(3 - nu)/(1 + nu)` in plane stress. Flagged only when lambda < 1 (for nu = 0.3, corners
@@ -38,7 +38,7 @@
 //! a hole with 8 or more segments per quarter (11.25 deg per node) unflagged, with margin for
 //! uneven spacing (common practice: a quarter circle is usually given 8 or more segments). The
 //! price: corners between 180 and 195 deg are not flagged; their exponents lie above 0.85
-//! (Williams mode I, 195 deg: 0.8573, computed with [`crate::plan::williams_mode_one`]), a mild
+//! (Williams mode I, 195 deg: 0.8573, computed with [`williams::williams_mode_one`]), a mild
 //! singularity. Quadratic elements with mid nodes on the arc have matching edge tangents, so
 //! their arcs measure close to 180 deg and need no tolerance at all.
 //!
@@ -48,16 +48,19 @@
 
 mod angles;
 mod boundary;
+pub mod clamped;
 mod planar;
 mod solid;
+pub mod williams;
 
 use crate::material::{AnalysisMode, MaterialMap};
 use crate::mesh::{BoundaryFacets, Model, NodeElements};
-use crate::plan::{kappa_plane_strain, kappa_plane_stress, williams_mode_one};
+use clamped::{kappa_plane_strain, kappa_plane_stress};
 use rayon::prelude::*;
 use std::collections::BTreeMap;
 use std::f64::consts::PI;
 use thiserror::Error;
+use williams::williams_mode_one;
 
 /// Default angle tolerance in degrees: a boundary corner or edge is re-entrant when its interior
 /// angle exceeds 180 deg by more than this (module docs: why 15).

@@ -3,8 +3,9 @@
 
 use super::angles::interior_angle;
 use super::boundary::OuterFacet;
+use super::clamped::clamped_free_exponent;
+use super::williams::williams_mode_one;
 use super::{BoundaryAngles, Context, SingularError, SingularSpot, SpotKind};
-use crate::plan::{clamped_free_exponent, williams_mode_one};
 use rayon::prelude::*;
 use std::f64::consts::PI;
 

@@ -11,8 +11,8 @@
 //! quadrilaterals and hexahedra, collapsed rules on simplices, triangle x line on wedges).
 //! Parallel over elements; the totals are summed in element order.
 
-use super::gauss::reference_rule;
 use super::SolveError;
+use crate::element::gauss::reference_rule;
 use crate::element::{ElementKind, ShapeTable};
 use crate::material::{AnalysisMode, MaterialMap};
 use crate::mesh::Mesh;

@@ -12,8 +12,8 @@
 //! normal of tangent `(t_x, t_y)` is `(t_y, -t_x)/|t|`; face corners are ordered so that
 //! `dx/dxi x dx/deta` points out of the element.
 
-use super::gauss::{gauss_legendre, reference_rule};
 use super::{SolveError, TractionLoad};
+use crate::element::gauss::{gauss_legendre, reference_rule};
 use crate::element::{ElementKind, MAX_NODES};
 use crate::material::AnalysisMode;
 use crate::mesh::Mesh;

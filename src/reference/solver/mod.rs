@@ -27,7 +27,6 @@ mod coarse;
 mod direct;
 mod dofs;
 mod exact;
-mod gauss;
 mod iterative;
 mod loads;
 mod output;
@@ -37,8 +36,8 @@ mod select;
 mod solve;
 mod stiffness;
 
+pub use crate::element::gauss::{gauss_legendre, reference_rule};
 pub use exact::{exact_errors, try_exact_errors, ExactErrors};
-pub use gauss::{gauss_legendre, reference_rule};
 pub use loads::{facet_shape, FacetShape};
 pub use output::write_results;
 pub use select::{boundary_facets, fix_component, select_facets, select_nodes};

@@ -1,5 +1,6 @@
-//! High-order quadrature for the reference problems: Gauss-Legendre rules of any size computed by
-//! Newton's method, and product rules on every reference element.
+//! High-order quadrature (the reference problems' loads and exact errors, the estimate at
+//! re-entrant corners): Gauss-Legendre rules of any size computed by Newton's method, and
+//! product rules on every reference element.
 //!
 //! Gauss-Legendre: the nodes are the roots of the Legendre polynomial `P_n`, found by Newton's
 //! method from the estimate `x_i = cos(pi (i + 3/4) / (n + 1/2))`, with `P_n` and `P_n'` from the
