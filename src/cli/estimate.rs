@@ -12,6 +12,7 @@ use crate::material::{von_mises, AnalysisMode, MaterialMap};
 use crate::mesh::Model;
 use crate::recovery::RecoveryMethod;
 use crate::report::{EstimateReport, TopElement};
+use crate::singular::{format_point, SpotKind};
 use anyhow::{anyhow, Context, Result};
 
 /// Runs the estimate stage with progress display; errors name the file.
@@ -159,13 +160,16 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
             })
             .collect(),
         warnings,
-        notes: if notes.reoriented_wedges > 0 {
-            vec![format!(
-                "{} wedge cells use the other corner handedness (face 0-1-2 facing 3-4-5); they were reordered",
-                notes.reoriented_wedges
-            )]
-        } else {
-            Vec::new()
+        notes: {
+            let mut lines = Vec::new();
+            if notes.reoriented_wedges > 0 {
+                lines.push(format!(
+                    "{} wedge cells use the other corner handedness (face 0-1-2 facing 3-4-5); they were reordered",
+                    notes.reoriented_wedges
+                ));
+            }
+            lines.extend(corner_notes(&computed, &model));
+            lines
         },
     };
     super::print_report(
@@ -227,4 +231,27 @@ pub fn write_annotated(
     cells.extend_from_slice(extra_cells);
     write_model_vtu(out, Some(input), model, &points, &cells, &options)?;
     Ok(())
+}
+
+/// One note per re-entrant corner whose elements use the fitted corner field.
+pub(super) fn corner_notes(computed: &Computed, model: &Model) -> Vec<String> {
+    computed
+        .corners
+        .iter()
+        .map(|c| {
+            let p = model.mesh.points[c.node as usize];
+            let lambdas = c
+                .lambdas
+                .iter()
+                .map(|l| format!("{l:.4}"))
+                .collect::<Vec<_>>()
+                .join(" and ");
+            format!(
+                "re-entrant corner of {:.1} deg at {}: in its {} elements the recovered stress is the corner's singular field (Williams exponents {lambdas}) plus a linear part, fitted to the FE stresses nearby, since patch polynomials cannot follow it",
+                c.angle.to_degrees(),
+                format_point(p, SpotKind::ReentrantCorner),
+                c.elements.len()
+            )
+        })
+        .collect()
 }

@@ -267,7 +267,7 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
         spots,
         files: Vec::new(),
         warnings,
-        notes: Vec::new(),
+        notes: super::estimate::corner_notes(&computed, &model),
     };
     let files = plan_file_names(&out_dir);
     report.files = files.iter().map(|p| p.display().to_string()).collect();

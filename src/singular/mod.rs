@@ -164,7 +164,7 @@ impl SingularSpot {
 }
 
 /// Coordinates with up to 6 significant digits; 2D spots (corners) without z.
-fn format_point(p: [f64; 3], kind: SpotKind) -> String {
+pub fn format_point(p: [f64; 3], kind: SpotKind) -> String {
     let one = |v: f64| {
         if v == 0.0 || !v.is_finite() {
             return format!("{}", if v == 0.0 { 0.0 } else { v });
@@ -344,7 +344,7 @@ impl Context<'_> {
                 kappa_plane_strain(nu)
             }
         };
-        // the range plan::clamped solves for (its root search needs 0.5 < kappa < 4)
+        // the range `clamped` solves for (its root search needs 0.5 < kappa < 4)
         if nu.is_finite() && nu > -1.0 && nu < 0.5 && kappa > 0.5 && kappa < 4.0 {
             Ok(kappa)
         } else {
