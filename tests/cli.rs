@@ -436,3 +436,48 @@ fn demo_writes_its_files_and_protects_others() {
         "mine"
     );
 }
+
+/// The shipped sharp demo plate has one re-entrant corner (270 degrees at (200, 125), the
+/// demo's geometry): the JSON notes say its elements use the fitted corner field; the rounded
+/// variant has no such note.
+#[test]
+fn estimate_notes_the_corner_field() {
+    let meshes = Path::new(env!("CARGO_MANIFEST_DIR")).join("meshes");
+    let notes = |file: &str| -> Vec<String> {
+        let o = hone(&[
+            "estimate",
+            meshes.join(file).to_str().unwrap(),
+            "--youngs",
+            "206000",
+            "--poisson",
+            "0.3",
+            "--plane-stress",
+            "--thickness",
+            "8",
+            "--json",
+        ]);
+        assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+        let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("one JSON object");
+        v["notes"]
+            .as_array()
+            .expect("notes")
+            .iter()
+            .map(|n| n.as_str().unwrap().to_string())
+            .collect()
+    };
+    let sharp = notes("deck_sharp_tri6.vtu");
+    let corner: Vec<&String> = sharp
+        .iter()
+        .filter(|n| n.starts_with("re-entrant corner of 270.0 deg at (200, 125)"))
+        .collect();
+    assert_eq!(corner.len(), 1, "{sharp:?}");
+    assert!(
+        corner[0].contains("Williams exponents 0.5445 and 0.9085"),
+        "{corner:?}"
+    );
+    let rounded = notes("deck_rounded_tri6.vtu");
+    assert!(
+        !rounded.iter().any(|n| n.contains("re-entrant corner")),
+        "{rounded:?}"
+    );
+}
