@@ -444,18 +444,10 @@ fn demo_writes_its_files_and_protects_others() {
 fn estimate_notes_the_corner_field() {
     let meshes = Path::new(env!("CARGO_MANIFEST_DIR")).join("meshes");
     let notes = |file: &str| -> Vec<String> {
-        let o = hone(&[
-            "estimate",
-            meshes.join(file).to_str().unwrap(),
-            "--youngs",
-            "206000",
-            "--poisson",
-            "0.3",
-            "--plane-stress",
-            "--thickness",
-            "8",
-            "--json",
-        ]);
+        let path = meshes.join(file);
+        let mut args = vec!["estimate", path.to_str().unwrap(), "--json"];
+        args.extend(hone::reference::demo::PLATE_FLAGS);
+        let o = hone(&args);
         assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
         let v: serde_json::Value = serde_json::from_slice(&o.stdout).expect("one JSON object");
         v["notes"]

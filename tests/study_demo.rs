@@ -7,6 +7,7 @@
 mod common;
 
 use common::scratch;
+use hone::reference::demo::PLATE_FLAGS;
 use hone::reference::demo::{plate_mesh, solve_plate, Corner};
 use hone::reference::solver::write_results;
 use std::process::Command;
@@ -20,19 +21,12 @@ fn study(corner: Corner) -> serde_json::Value {
         write_results(&path, &solved.mesh, &solved.displacement, false).expect("writes");
         args.push(path.display().to_string());
     }
-    for a in [
-        "--youngs",
-        "206000",
-        "--poisson",
-        "0.3",
-        "--plane-stress",
-        "--thickness",
-        "8",
+    for a in PLATE_FLAGS.into_iter().chain([
         "--probe",
         "max:von_mises@sphere(200,125,60)",
         "--no-plot",
         "--json",
-    ] {
+    ]) {
         args.push(a.into());
     }
     let o = Command::new(env!("CARGO_BIN_EXE_hone"))

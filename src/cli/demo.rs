@@ -11,7 +11,7 @@ use crate::material::{von_mises, AnalysisMode, MaterialMap};
 use crate::mesh::Model;
 use crate::recovery::RecoveryMethod;
 use crate::reference::demo::{
-    plate_mesh, solid_mesh, solve_plate, Corner, MATERIAL, OPENING, THICKNESS,
+    plate_mesh, solid_mesh, solve_plate, Corner, MATERIAL, OPENING, PLATE_FLAGS, THICKNESS,
 };
 use crate::reference::solver::write_results;
 use crate::report::{number, thousands};
@@ -125,21 +125,13 @@ fn run_command(words: &[String]) -> Result<Outcome> {
     super::run(cli)
 }
 
-/// The material and mode flags of the 2D demo files.
+/// The material and mode flags of the 2D demo files, without progress display.
 fn plate_flags() -> Vec<String> {
-    [
-        "--youngs",
-        "206000",
-        "--poisson",
-        "0.3",
-        "--plane-stress",
-        "--thickness",
-        "8",
-        "--quiet",
-    ]
-    .iter()
-    .map(|s| s.to_string())
-    .collect()
+    PLATE_FLAGS
+        .iter()
+        .chain(&["--quiet"])
+        .map(|s| s.to_string())
+        .collect()
 }
 
 pub(super) fn run(args: &DemoArgs) -> Result<Outcome> {

@@ -42,6 +42,18 @@ pub const MATERIAL: Material = Material {
     poisson: 0.3,
 };
 
+/// [`MATERIAL`], plane stress and [`THICKNESS`] as `hone` command-line flags, for running the
+/// commands on the 2D demo files.
+pub const PLATE_FLAGS: [&str; 7] = [
+    "--youngs",
+    "206000",
+    "--poisson",
+    "0.3",
+    "--plane-stress",
+    "--thickness",
+    "8",
+];
+
 /// The two corner variants.
 #[derive(Copy, Clone, Debug, PartialEq, Eq)]
 pub enum Corner {
