@@ -96,7 +96,8 @@ pub fn estimate_model(
     let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
     stage("stress recovery");
     let recovered = recover(model, &materials, &samples, &adjacency, &boundary, method);
-    let corners = if method == RecoveryMethod::Spr {
+    let corners = if method == RecoveryMethod::Spr && materials.mode.dimension() == 2 {
+        stage("fields at re-entrant corners");
         corner_fields(model, map, &materials, &samples, &adjacency, &boundary)
     } else {
         Vec::new()

@@ -34,6 +34,7 @@ use crate::material::{AnalysisMode, SymTensor};
 use crate::mesh::{Mesh, NodeElements};
 use crate::singular::williams::{williams_mode_one, williams_mode_two};
 use nalgebra::{DMatrix, DVector};
+use std::collections::HashSet;
 use std::f64::consts::PI;
 
 /// Radius of the fit, in sizes of the elements touching the corner (mean distance from the
@@ -173,9 +174,57 @@ fn boundary_directions(mesh: &Mesh, adjacency: &NodeElements, node: u32) -> Opti
         let p = mesh.points[v as usize];
         let (dx, dy) = (p[0] - o[0], p[1] - o[1]);
         let len = dx.hypot(dy);
-        [dx / len, dy / len]
+        (len > 0.0 && len.is_finite()).then(|| [dx / len, dy / len])
     };
-    Some([unit(a), unit(b)])
+    Some([unit(a)?, unit(b)?])
+}
+
+/// Elements of `zone` that may reach within `radius` of the corner `node`, ascending: a search
+/// outward through the adjacency from the corner's elements, so the cost depends on the
+/// corner's neighbourhood, not on the mesh size.
+fn elements_near(
+    mesh: &Mesh,
+    adjacency: &NodeElements,
+    node: u32,
+    zone: i64,
+    radius: f64,
+) -> Vec<u32> {
+    let o = mesh.points[node as usize];
+    let mut visited: HashSet<u32> = HashSet::new();
+    let mut queue: Vec<u32> = adjacency.of(node as usize).to_vec();
+    let mut near = Vec::new();
+    while let Some(e) = queue.pop() {
+        if !visited.insert(e) {
+            continue;
+        }
+        let (kind, nodes) = mesh.element(e as usize);
+        let vertices = &nodes[..kind.vertex_count()];
+        // The element's bounding circle (about the mean of its vertices) meets the disc.
+        let count = vertices.len() as f64;
+        let centre = vertices.iter().fold([0.0, 0.0], |c, &v| {
+            let p = mesh.points[v as usize];
+            [c[0] + p[0] / count, c[1] + p[1] / count]
+        });
+        let reach = vertices.iter().fold(0.0_f64, |r, &v| {
+            let p = mesh.points[v as usize];
+            r.max((p[0] - centre[0]).hypot(p[1] - centre[1]))
+        });
+        let inside = (centre[0] - o[0]).hypot(centre[1] - o[1]) - reach <= radius;
+        if !inside || mesh.zone[e as usize] != zone {
+            continue;
+        }
+        near.push(e);
+        for &v in vertices {
+            queue.extend(
+                adjacency
+                    .of(v as usize)
+                    .iter()
+                    .filter(|e| !visited.contains(e)),
+            );
+        }
+    }
+    near.sort_unstable();
+    near
 }
 
 /// Fits the field of the re-entrant corner at `node` (interior angle `angle`, radians) from
@@ -234,15 +283,16 @@ pub fn fit_corner(
     lambdas.extend(williams_mode_two(angle));
     let singular = lambdas.len();
     let unknowns = singular + 9;
-    // Sampling points of same-zone elements within the radius, in element order.
+    // Sampling points within the radius, of same-zone elements near the corner, in element
+    // order.
     let mut rows: Vec<f64> = Vec::new();
     let mut rhs: Vec<f64> = Vec::new();
-    for (b, block) in mesh.blocks.iter().enumerate() {
-        for i in 0..block.len() {
-            let e = block.first_element + i;
-            if mesh.zone[e] != zone {
-                continue;
-            }
+    for e in elements_near(mesh, adjacency, node, zone, radius) {
+        let e = e as usize;
+        let b = mesh.block_of(e);
+        let block = &mesh.blocks[b];
+        {
+            let i = e - block.first_element;
             for s in samples.range(block.kind, b, i) {
                 let x = samples.position[s];
                 let (dx, dy) = (x[0] - o[0], x[1] - o[1]);
