@@ -291,31 +291,29 @@ pub fn fit_corner(
         let e = e as usize;
         let b = mesh.block_of(e);
         let block = &mesh.blocks[b];
-        {
-            let i = e - block.first_element;
-            for s in samples.range(block.kind, b, i) {
-                let x = samples.position[s];
-                let (dx, dy) = (x[0] - o[0], x[1] - o[1]);
-                if dx.hypot(dy) > radius || dx.hypot(dy) == 0.0 {
-                    continue;
+        for s in samples.range(block.kind, b, e - block.first_element) {
+            let x = samples.position[s];
+            let (dx, dy) = (x[0] - o[0], x[1] - o[1]);
+            let r = dx.hypot(dy);
+            if r > radius || r == 0.0 {
+                continue;
+            }
+            let units: Vec<[f64; 3]> = lambdas
+                .iter()
+                .enumerate()
+                .map(|(m, &l)| unit_field(l, m == 0, angle, bisector, radius, dx, dy))
+                .collect();
+            for (c, &slot) in [0usize, 1, 3].iter().enumerate() {
+                let start = rows.len();
+                rows.resize(start + unknowns, 0.0);
+                let row = &mut rows[start..];
+                for (m, unit) in units.iter().enumerate() {
+                    row[m] = unit[c];
                 }
-                let units: Vec<[f64; 3]> = lambdas
-                    .iter()
-                    .enumerate()
-                    .map(|(m, &l)| unit_field(l, m == 0, angle, bisector, radius, dx, dy))
-                    .collect();
-                for (c, &slot) in [0usize, 1, 3].iter().enumerate() {
-                    let start = rows.len();
-                    rows.resize(start + unknowns, 0.0);
-                    let row = &mut rows[start..];
-                    for (m, unit) in units.iter().enumerate() {
-                        row[m] = unit[c];
-                    }
-                    row[singular + 3 * c] = 1.0;
-                    row[singular + 3 * c + 1] = dx / radius;
-                    row[singular + 3 * c + 2] = dy / radius;
-                    rhs.push(samples.stress[s][slot]);
-                }
+                row[singular + 3 * c] = 1.0;
+                row[singular + 3 * c + 1] = dx / radius;
+                row[singular + 3 * c + 2] = dy / radius;
+                rhs.push(samples.stress[s][slot]);
             }
         }
     }
