@@ -96,7 +96,11 @@ pub fn estimate_model(
     let boundary = BoundaryFacets::new(&model.mesh, &adjacency);
     stage("stress recovery");
     let recovered = recover(model, &materials, &samples, &adjacency, &boundary, method);
-    let corners = if method == RecoveryMethod::Spr && materials.mode.dimension() == 2 {
+    let plane = matches!(
+        materials.mode,
+        AnalysisMode::PlaneStrain | AnalysisMode::PlaneStress { .. }
+    );
+    let corners = if method == RecoveryMethod::Spr && plane {
         stage("fields at re-entrant corners");
         corner_fields(model, map, &materials, &samples, &adjacency, &boundary)
     } else {
@@ -115,9 +119,9 @@ pub fn estimate_model(
     })
 }
 
-/// Fits the field of every re-entrant corner of a plane model (the singular screening's
-/// corners; none in 3D or axisymmetric models, or when the screening cannot run, in which case
-/// the corners keep plain SPR).
+/// Fits the field of every re-entrant corner of a plane stress or plane strain model (the
+/// singular screening's corners; none when the screening cannot run, in which case the corners
+/// keep plain SPR).
 fn corner_fields(
     model: &Model,
     map: &MaterialMap,
@@ -127,12 +131,6 @@ fn corner_fields(
     boundary: &BoundaryFacets,
 ) -> Vec<CornerField> {
     let mode = materials.mode;
-    if !matches!(
-        mode,
-        AnalysisMode::PlaneStrain | AnalysisMode::PlaneStress { .. }
-    ) {
-        return Vec::new();
-    }
     let options = ScreeningOptions::new(mode, PoissonRatio::from_materials(map));
     let Ok(screening) = screen_with(model, adjacency, boundary, &options) else {
         return Vec::new();
