@@ -4,7 +4,7 @@ use super::args::PlanArgs;
 use super::estimate::{load, write_annotated, Loaded};
 use super::progress::Stages;
 use super::Outcome;
-use crate::io::text_out::{check_sizes, NodeText};
+use crate::io::text_out::NodeText;
 use crate::io::{
     file_order, write_atomically, write_medit_text, write_msh_text, write_pos_text, Field,
     FieldValues,
@@ -374,10 +374,8 @@ fn write_plan_files(
         size_target: &the_plan.size_target,
         singular_zone,
     };
-    let sizes = &the_plan.nodal_size;
-    check_sizes(&files[4].display().to_string(), mesh.node_count(), sizes)?;
     // Coordinates and sizes are formatted once for the four text files that print them.
-    let nodes = NodeText::new(&mesh.points, sizes);
+    let nodes = NodeText::checked(&files[4], mesh, &the_plan.nodal_size)?;
     let context = |i: usize| format!("writing {}", files[i].display());
     type Job<'a> = Box<dyn FnOnce() -> Result<()> + Send + 'a>;
     let jobs: Vec<Job<'_>> = vec![

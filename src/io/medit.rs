@@ -3,7 +3,7 @@
 use std::path::Path;
 
 use super::error::IoError;
-use super::text_out::{check_sizes, push_int, write_chunked, NodeText};
+use super::text_out::{push_int, write_chunked, NodeText};
 use super::write_atomically;
 use crate::element::ElementKind;
 use crate::mesh::Mesh;
@@ -39,17 +39,11 @@ pub fn write_medit_size_field(
     mesh: &Mesh,
     sizes: &[f64],
 ) -> Result<(), IoError> {
-    check_sizes(&sol_path.display().to_string(), mesh.node_count(), sizes)?;
-    write_medit_text(
-        mesh_path,
-        sol_path,
-        protect,
-        mesh,
-        &NodeText::new(&mesh.points, sizes),
-    )
+    let text = NodeText::checked(sol_path, mesh, sizes)?;
+    write_medit_text(mesh_path, sol_path, protect, mesh, &text)
 }
 
-/// [`write_medit_size_field`] with the numbers already formatted (sizes checked by the caller).
+/// [`write_medit_size_field`] with the numbers already formatted and checked.
 pub(crate) fn write_medit_text(
     mesh_path: &Path,
     sol_path: &Path,

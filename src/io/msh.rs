@@ -40,7 +40,7 @@ use super::gmsh_types::{gmsh_number, gmsh_type, vtk_to_gmsh, GmshType};
 use super::grid::{DataArray, RawGrid};
 use super::read_vtu::with_mapped_file;
 use super::scalar::ScalarType;
-use super::text_out::{check_sizes, push_int, write_chunked, NodeText};
+use super::text_out::{push_int, write_chunked, NodeText};
 use super::write_atomically;
 use crate::mesh::Mesh;
 
@@ -1039,11 +1039,10 @@ pub fn write_msh_size_field(
     mesh: &Mesh,
     sizes: &[f64],
 ) -> Result<(), IoError> {
-    check_sizes(&path.display().to_string(), mesh.node_count(), sizes)?;
-    write_msh_text(path, protect, mesh, &NodeText::new(&mesh.points, sizes))
+    write_msh_text(path, protect, mesh, &NodeText::checked(path, mesh, sizes)?)
 }
 
-/// [`write_msh_size_field`] with the numbers already formatted (sizes checked by the caller).
+/// [`write_msh_size_field`] with the numbers already formatted and checked.
 pub(crate) fn write_msh_text(
     path: &Path,
     protect: Option<&Path>,

@@ -17,7 +17,7 @@
 use std::path::Path;
 
 use super::error::IoError;
-use super::text_out::{check_sizes, push_f64, write_chunked, NodeText};
+use super::text_out::{push_f64, write_chunked, NodeText};
 use super::write_atomically;
 use crate::element::ElementKind;
 use crate::mesh::Mesh;
@@ -92,11 +92,10 @@ pub fn write_pos_size_field(
     mesh: &Mesh,
     sizes: &[f64],
 ) -> Result<(), IoError> {
-    check_sizes(&path.display().to_string(), mesh.node_count(), sizes)?;
-    write_pos_text(path, protect, mesh, &NodeText::new(&mesh.points, sizes))
+    write_pos_text(path, protect, mesh, &NodeText::checked(path, mesh, sizes)?)
 }
 
-/// [`write_pos_size_field`] with the numbers already formatted (sizes checked by the caller).
+/// [`write_pos_size_field`] with the numbers already formatted and checked.
 pub(crate) fn write_pos_text(
     path: &Path,
     protect: Option<&Path>,

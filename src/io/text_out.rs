@@ -7,6 +7,8 @@ use std::ops::Range;
 use rayon::prelude::*;
 
 use super::error::IoError;
+use crate::mesh::Mesh;
+use std::path::Path;
 
 /// Items formatted per parallel task. Chunk boundaries depend on the item count only, and the
 /// chunks are written in order, so the bytes do not depend on the thread count.
@@ -72,12 +74,14 @@ pub(crate) struct NodeText {
 }
 
 impl NodeText {
-    /// Formats `points` and `sizes` (callers check `sizes` with [`check_sizes`] first).
-    pub(crate) fn new(points: &[[f64; 3]], sizes: &[f64]) -> Self {
-        Self {
-            coords: NumberText::new(points.as_flattened()),
+    /// Checks `sizes` against `mesh` ([`check_sizes`]; `path` names the output in errors),
+    /// then formats the mesh's coordinates and the sizes.
+    pub(crate) fn checked(path: &Path, mesh: &Mesh, sizes: &[f64]) -> Result<Self, IoError> {
+        check_sizes(&path.display().to_string(), mesh.node_count(), sizes)?;
+        Ok(Self {
+            coords: NumberText::new(mesh.points.as_flattened()),
             sizes: NumberText::new(sizes),
-        }
+        })
     }
 
     /// Number of nodes.
@@ -187,7 +191,7 @@ pub(crate) fn write_chunked(
 }
 
 /// Checks that `sizes` holds one finite value per mesh node; `path` names the output file.
-pub(crate) fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
+fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
     if sizes.len() != node_count {
         return Err(IoError::ArrayLength {
             file: path.to_string(),
