@@ -142,9 +142,6 @@ pub fn estimate(
     corner_of.sort_unstable();
     corner_of.dedup_by_key(|p| p.0);
     let field_of = |e: usize| -> Option<&CornerField> {
-        if corner_of.is_empty() {
-            return None;
-        }
         corner_of
             .binary_search_by_key(&(e as u32), |p| p.0)
             .ok()

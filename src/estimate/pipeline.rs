@@ -140,25 +140,13 @@ fn corner_fields(
         .iter()
         .filter(|s| s.kind == SpotKind::ReentrantCorner && s.nodes.len() == 1)
         .filter_map(|s| {
-            let node = s.nodes[0];
-            let first = *adjacency.of(node as usize).first()? as usize;
-            // sigma_zz = nu (sigma_xx + sigma_yy) in plane strain, with nu = D01 / (D00 + D01).
+            let first = *adjacency.of(s.nodes[0] as usize).first()? as usize;
+            // sigma_zz = nu (sigma_xx + sigma_yy) in plane strain, 0 in plane stress.
             let zz = match mode {
-                AnalysisMode::PlaneStrain => {
-                    let d = &materials.of(first).stiffness;
-                    d[0][1] / (d[0][0] + d[0][1])
-                }
+                AnalysisMode::PlaneStrain => map.material(model.mesh.zone[first])?.poisson,
                 _ => 0.0,
             };
-            fit_corner(
-                &model.mesh,
-                mode,
-                zz,
-                samples,
-                adjacency,
-                node,
-                s.angle_deg.to_radians(),
-            )
+            fit_corner(&model.mesh, mode, zz, samples, adjacency, boundary, s)
         })
         .collect()
 }

@@ -31,8 +31,9 @@
 
 use super::SampledStresses;
 use crate::material::{AnalysisMode, SymTensor};
-use crate::mesh::{Mesh, NodeElements};
+use crate::mesh::{BoundaryFacets, Mesh, NodeElements};
 use crate::singular::williams::{williams_mode_one, williams_mode_two};
+use crate::singular::SingularSpot;
 use nalgebra::{DMatrix, DVector};
 use std::collections::HashSet;
 use std::f64::consts::PI;
@@ -146,27 +147,34 @@ pub fn unit_field(
     ]
 }
 
-/// The two boundary edges at `node` (edges of the elements around it that only one of them
-/// has), as unit vectors from the node; `None` unless there are exactly two.
-fn boundary_directions(mesh: &Mesh, adjacency: &NodeElements, node: u32) -> Option<[[f64; 2]; 2]> {
+/// The two boundary edges at `node` (the mesh's boundary facets of the elements around it
+/// that have the node as a corner), as unit vectors from the node; `None` unless there are
+/// exactly two.
+fn boundary_directions(
+    mesh: &Mesh,
+    adjacency: &NodeElements,
+    boundary: &BoundaryFacets,
+    node: u32,
+) -> Option<[[f64; 2]; 2]> {
     let mut others: Vec<u32> = Vec::new();
     for &e in adjacency.of(node as usize) {
         let (kind, nodes) = mesh.element(e as usize);
-        for &[a, b] in kind.edges() {
-            if nodes[a] == node {
-                others.push(nodes[b]);
-            } else if nodes[b] == node {
-                others.push(nodes[a]);
+        let first = boundary.facets.partition_point(|&(f, _)| f < e);
+        for &(_, facet) in boundary.facets[first..]
+            .iter()
+            .take_while(|&&(f, _)| f == e)
+        {
+            let corners = kind.facets()[facet as usize].corners;
+            if let [a, b] = corners[..] {
+                match (nodes[a] == node, nodes[b] == node) {
+                    (true, false) => others.push(nodes[b]),
+                    (false, true) => others.push(nodes[a]),
+                    _ => {}
+                }
             }
         }
     }
-    others.sort_unstable();
-    let single: Vec<u32> = others
-        .chunk_by(|a, b| a == b)
-        .filter(|g| g.len() == 1)
-        .map(|g| g[0])
-        .collect();
-    let [a, b] = single[..] else {
+    let [a, b] = others[..] else {
         return None;
     };
     let o = mesh.points[node as usize];
@@ -227,9 +235,9 @@ fn elements_near(
     near
 }
 
-/// Fits the field of the re-entrant corner at `node` (interior angle `angle`, radians) from
-/// the FE stresses at the sampling points. `None` (the corner keeps plain SPR) when the mode is
-/// not plane stress or plane strain, the corner is not re-entrant or sits on a material
+/// Fits the field of the corner `spot` (one node, its measured interior angle) from the FE
+/// stresses at the sampling points. `None` (the corner keeps plain SPR) when the mode is not
+/// plane stress or plane strain, the spot is not one re-entrant corner node or sits on a material
 /// interface, its boundary edges cannot be told, or the fit has too few points or is rank
 /// deficient.
 pub fn fit_corner(
@@ -238,9 +246,13 @@ pub fn fit_corner(
     zz_factor: f64,
     samples: &SampledStresses,
     adjacency: &NodeElements,
-    node: u32,
-    angle: f64,
+    boundary: &BoundaryFacets,
+    spot: &SingularSpot,
 ) -> Option<CornerField> {
+    let [node] = spot.nodes[..] else {
+        return None;
+    };
+    let angle = spot.angle_deg.to_radians();
     if !matches!(
         mode,
         AnalysisMode::PlaneStrain | AnalysisMode::PlaneStress { .. }
@@ -254,7 +266,7 @@ pub fn fit_corner(
         return None;
     }
     let o = mesh.points[node as usize];
-    let [t1, t2] = boundary_directions(mesh, adjacency, node)?;
+    let [t1, t2] = boundary_directions(mesh, adjacency, boundary, node)?;
     let sum = [t1[0] + t2[0], t1[1] + t2[1]];
     // The material bisector is opposite the bisector of the (smaller) void angle; a crack's two
     // faces coincide, and the material lies straight ahead of them.
