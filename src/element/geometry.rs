@@ -54,6 +54,26 @@ fn det_inv(j: &[[f64; 3]; 3]) -> (f64, [[f64; 3]; 3]) {
     (det, inv)
 }
 
+/// True when every mid-edge node of an element of `kind` lies at the midpoint of its edge, to
+/// within `1e-12 h` with `h^2 = h2` the element's size (always true for linear kinds). A
+/// straight-sided simplex then has a constant Jacobian, which the strain kernel and the element
+/// counter of the plan use; `point(i)` gives the position of local node `i`.
+pub fn mid_nodes_at_midpoints(
+    kind: ElementKind,
+    point: impl Fn(usize) -> [f64; 3],
+    h2: f64,
+) -> bool {
+    let tol2 = 1e-24 * h2;
+    kind.edges()
+        .iter()
+        .zip(kind.edge_mid_nodes())
+        .all(|(edge, &mid)| {
+            let (m, p, q) = (point(mid), point(edge[0]), point(edge[1]));
+            let off: f64 = (0..3).map(|c| (m[c] - 0.5 * (p[c] + q[c])).powi(2)).sum();
+            off <= tol2
+        })
+}
+
 /// Determinant and inverse of a Jacobian `j` (rows: natural directions) of a `dim`-dimensional
 /// map; in 2D only the x-y block is used and the third row and column of the inverse are those
 /// of the identity. The inverse is only meaningful when the determinant is non-zero and finite.

@@ -30,6 +30,7 @@ pub(crate) mod tests;
 
 pub use geometry::{
     interpolate_point, inverse_map, invert_jacobian, jacobian_determinant, map_gradients,
+    mid_nodes_at_midpoints,
 };
 pub use patch_basis::PatchBasis;
 pub use quadrature::{QuadraturePoint, Rule};

@@ -9,7 +9,9 @@
 
 use rayon::prelude::*;
 
-use crate::element::{jacobian_determinant, ElementKind, ShapeTable, TableRule, MAX_NODES};
+use crate::element::{
+    jacobian_determinant, mid_nodes_at_midpoints, ElementKind, ShapeTable, TableRule, MAX_NODES,
+};
 use crate::mesh::Mesh;
 
 /// Vertex field from element sizes: `h_v = min over elements K containing v of h_K`.
@@ -107,15 +109,16 @@ struct BlockCounter {
     weighted_det: Vec<f64>,
 }
 
-/// True when every mid-edge node lies at the midpoint of its edge (to 1e-10 of the edge length:
-/// the Jacobian then differs from the straight element's by far less than the count needs).
-fn straight_edges(coords: &[[f64; 3]], edges: &[[usize; 2]], mids: &[usize]) -> bool {
-    edges.iter().zip(mids).all(|(e, &m)| {
-        let (a, b, x) = (coords[e[0]], coords[e[1]], coords[m]);
-        let off: f64 = (0..3).map(|i| (x[i] - 0.5 * (a[i] + b[i])).powi(2)).sum();
-        let len: f64 = (0..3).map(|i| (b[i] - a[i]).powi(2)).sum();
-        off <= 1e-20 * len
-    })
+/// Square of the largest distance between two corners: the element size the straight-sides
+/// test is relative to (as in the strain kernel).
+fn corner_size_sq(corners: &[[f64; 3]]) -> f64 {
+    let mut h2: f64 = 0.0;
+    for (a, p) in corners.iter().enumerate() {
+        for q in &corners[a + 1..] {
+            h2 = h2.max((0..3).map(|c| (p[c] - q[c]).powi(2)).sum());
+        }
+    }
+    h2
 }
 
 /// Predicts the element count a mesher makes from a nodal size field (method sheet 3.5):
@@ -153,14 +156,16 @@ impl ElementCounter {
                 // the usual case) have a constant Jacobian: one determinant of the corners
                 // instead of one of all nodes per point.
                 let simplex = matches!(linear, ElementKind::Tri3 | ElementKind::Tet4);
-                let (edges, mids) = (b.kind.edges(), b.kind.edge_mid_nodes());
                 let weighted_det: Vec<f64> = (0..b.len())
                     .into_par_iter()
                     .flat_map_iter(|c| {
                         let nodes = b.cell(c);
                         let mut coords = [[0.0; 3]; MAX_NODES];
                         mesh.gather_coords(nodes, &mut coords[..nn]);
-                        let straight = simplex && straight_edges(&coords[..nn], edges, mids);
+                        let straight = simplex && {
+                            let h2 = corner_size_sq(&coords[..nv]);
+                            mid_nodes_at_midpoints(b.kind, |i| coords[i], h2)
+                        };
                         let constant = if straight {
                             jacobian_determinant(dim, &coords[..nv], rule.dn_at(0)).abs()
                         } else {
@@ -277,11 +282,8 @@ mod tests {
         let (kind, nodes) = mesh.element(e);
         let mut coords = [[0.0; 3]; MAX_NODES];
         mesh.gather_coords(nodes, &mut coords[..kind.node_count()]);
-        assert!(!straight_edges(
-            &coords[..kind.node_count()],
-            kind.edges(),
-            kind.edge_mid_nodes()
-        ));
+        let h2 = corner_size_sq(&coords[..kind.vertex_count()]);
+        assert!(!mid_nodes_at_midpoints(kind, |i| coords[i], h2));
         let field = vec![0.1; mesh.node_count()];
         let n = predicted_elements(&mesh, &field);
         let expected = 6.0 * 2f64.sqrt() / 1e-3;

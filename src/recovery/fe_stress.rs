@@ -11,7 +11,9 @@
 //! passes that evaluate strains anyway do the check, so no separate pass is needed.
 
 use super::materials::ElementMaterials;
-use crate::element::{invert_jacobian, ElementKind, ShapeTable, TableRule, MAX_NODES};
+use crate::element::{
+    invert_jacobian, mid_nodes_at_midpoints, ElementKind, ShapeTable, TableRule, MAX_NODES,
+};
 use crate::material::{AnalysisMode, SymTensor};
 use crate::mesh::{BadElement, BadElementKind, Model, DEGENERATE_RELATIVE_DET};
 use rayon::prelude::*;
@@ -48,14 +50,8 @@ fn affine_simplex(
         Tet4 | Tet10 => 3,
         _ => return None,
     };
-    let tol2 = 1e-24 * h2;
-    for (edge, &mid) in kind.edges().iter().zip(kind.edge_mid_nodes()) {
-        let m = &rows[mid];
-        let (p, q) = (&rows[edge[0]], &rows[edge[1]]);
-        let off: f64 = (0..3).map(|c| (m[c] - 0.5 * (p[c] + q[c])).powi(2)).sum();
-        if off > tol2 {
-            return None;
-        }
+    if !mid_nodes_at_midpoints(kind, |i| [rows[i][0], rows[i][1], rows[i][2]], h2) {
+        return None;
     }
     let mut j = [[0.0; 3]; 3];
     for r in 0..d {
