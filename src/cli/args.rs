@@ -19,6 +19,11 @@ pub struct Cli {
     /// left half-written by a failed run.
     #[arg(long, global = true)]
     pub sync: bool,
+    /// Write every output through the operating system's file cache. By default, on Linux,
+    /// files of 4 MB and more go straight to the disk, which is much faster on virtual machines
+    /// and no slower on solid-state disks; the cache is faster on spinning disks.
+    #[arg(long, global = true)]
+    pub cached_writes: bool,
     /// Worker threads (default: all cores). Results are identical for any count.
     #[arg(long, global = true, value_name = "N")]
     pub threads: Option<usize>,

@@ -87,6 +87,7 @@ pub fn run(cli: Cli) -> Result<Outcome> {
             .build_global();
     }
     crate::io::set_sync_outputs(cli.sync);
+    crate::io::set_cached_writes(cli.cached_writes);
     match cli.command {
         Command::Inspect(a) => inspect::run(&a, cli.json),
         Command::Estimate(a) => estimate::run(&a, cli.json, cli.quiet),

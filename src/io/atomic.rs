@@ -1,10 +1,11 @@
 //! Writing a file so that readers never see it half-written.
 
 use std::fs;
-use std::io::{BufWriter, Write};
+use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 
+use super::block_writer::BlockWriter;
 use super::error::IoError;
 
 /// Distinguishes temporary files of concurrent writes within one process.
@@ -55,7 +56,8 @@ fn temp_path(path: &Path) -> PathBuf {
 /// Writes to a temporary file in the same directory, then renames over `path`, so a failure never
 /// leaves a half-written file; refuses (error) when `path` is the same file as `protect` (the input).
 ///
-/// `f` receives a buffered writer; it is flushed (and synced to the disk after
+/// `f` receives a buffered writer (big files go straight to the disk, see
+/// [`super::set_cached_writes`]); all its bytes are in the file (synced to the disk after
 /// [`set_sync_outputs`]) before the rename. On any error the temporary file is removed and
 /// `path` is left as it was.
 pub fn write_atomically(
@@ -86,9 +88,9 @@ pub fn write_atomically(
             source,
         })?;
     let result = (|| {
-        let mut w = BufWriter::with_capacity(1 << 20, file);
+        let mut w = BlockWriter::new(file);
         f(&mut w)?;
-        let file = w.into_inner().map_err(|e| e.into_error())?;
+        let file = w.finish()?;
         if SYNC_OUTPUTS.load(Ordering::Relaxed) {
             file.sync_all()?;
         }

@@ -31,6 +31,7 @@
 
 mod ascii;
 mod atomic;
+mod block_writer;
 mod decl;
 mod decode;
 mod encode;
@@ -49,6 +50,7 @@ mod write;
 mod xml;
 
 pub use atomic::{set_sync_outputs, write_atomically};
+pub use block_writer::set_cached_writes;
 pub use error::IoError;
 pub use grid::{DataArray, RawGrid};
 pub use medit::write_medit_size_field;
