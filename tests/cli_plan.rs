@@ -138,9 +138,23 @@ fn plan_json_summary_and_files() {
         let v: f64 = line.rsplit(',').next().unwrap().parse().unwrap();
         assert_eq!(v, *h);
     }
-    // The MSH size field carries the same values; the .pos view covers the triangles.
+    // The MSH size field carries the same values at the corner nodes, its points in node
+    // order; the .pos view covers the triangles.
     let msh = hone::io::read_msh(&out_dir.join("sizes.msh")).expect("MSH reads");
-    assert_eq!(&msh.point_array("size_target").unwrap().values, field);
+    let msh_sizes = &msh.point_array("size_target").unwrap().values;
+    let mut k = 0;
+    for (p, h) in back.points.iter().zip(field) {
+        if k < msh.points.len() && msh.points[k] == *p {
+            assert_eq!(msh_sizes[k], *h, "size at MSH node {k}");
+            k += 1;
+        }
+    }
+    assert_eq!(
+        k,
+        msh.points.len(),
+        "MSH nodes are the mesh's corners in node order"
+    );
+    assert_eq!(msh.cell_count(), rows.len());
     let pos = hone::io::read_pos_view(&out_dir.join("sizes.pos")).expect(".pos reads");
     assert_eq!(pos.name, "size_target");
     assert_eq!(pos.entries.len(), rows.len());

@@ -374,7 +374,8 @@ fn write_plan_files(
         size_target: &the_plan.size_target,
         singular_zone,
     };
-    // Coordinates and sizes are formatted once for the four text files that print them.
+    // Corner coordinates and sizes are formatted once for the three size-field files; this
+    // also checks the sizes for sizes.csv.
     let nodes = NodeText::checked(&files[4], mesh, &the_plan.nodal_size)?;
     let context = |i: usize| format!("writing {}", files[i].display());
     type Job<'a> = Box<dyn FnOnce() -> Result<()> + Send + 'a>;
@@ -390,8 +391,10 @@ fn write_plan_files(
                 .with_context(|| context(1))
         }),
         Box::new(|| {
-            write_atomically(&files[2], Some(input), |w| write_sizes_csv(w, &nodes))
-                .with_context(|| context(2))
+            write_atomically(&files[2], Some(input), |w| {
+                write_sizes_csv(w, mesh, &the_plan.nodal_size)
+            })
+            .with_context(|| context(2))
         }),
         Box::new(|| {
             write_pos_text(&files[4], Some(input), mesh, &nodes).with_context(|| context(4))

@@ -51,32 +51,16 @@ pub(crate) fn write_medit_text(
     mesh: &Mesh,
     text: &NodeText,
 ) -> Result<(), IoError> {
-    // Corner nodes, numbered 1.. in node order (0 = not a corner).
-    let mut number = vec![0u32; mesh.node_count()];
-    for b in &mesh.blocks {
-        let nv = b.kind.vertex_count();
-        for i in 0..b.len() {
-            for &v in &b.cell(i)[..nv] {
-                number[v as usize] = 1;
-            }
-        }
-    }
-    let mut corners: Vec<u32> = Vec::new();
-    for (v, slot) in number.iter_mut().enumerate() {
-        if *slot != 0 {
-            corners.push(v as u32);
-            *slot = corners.len() as u32;
-        }
-    }
+    let corners = text.corners();
     let dim = mesh.dimension;
     let header = format!("MeshVersionFormatted 2\n\nDimension {dim}\n\n");
     write_atomically(mesh_path, protect, |w| {
         w.write_all(header.as_bytes())?;
         w.write_all(format!("Vertices\n{}\n", corners.len()).as_bytes())?;
         write_chunked(w, corners.len(), |r, buf| {
-            for &v in &corners[r] {
+            for k in r {
                 for c in 0..dim {
-                    text.push_coord(buf, v as usize, c);
+                    text.push_corner_coord(buf, k, c);
                     buf.push(b' ');
                 }
                 buf.extend_from_slice(b"0\n");
@@ -104,7 +88,7 @@ pub(crate) fn write_medit_text(
                 write_chunked(w, b.len(), |r, buf| {
                     for i in r {
                         for &v in &b.cell(i)[..nv] {
-                            push_int(buf, number[v as usize]);
+                            push_int(buf, text.number(v));
                             buf.push(b' ');
                         }
                         let zone = mesh.zone[b.first_element + i].clamp(0, i32::MAX as i64);
@@ -120,8 +104,8 @@ pub(crate) fn write_medit_text(
         w.write_all(header.as_bytes())?;
         w.write_all(format!("SolAtVertices\n{}\n1 1\n\n", corners.len()).as_bytes())?;
         write_chunked(w, corners.len(), |r, buf| {
-            for &v in &corners[r] {
-                text.push_size(buf, v as usize);
+            for k in r {
+                text.push_corner_size(buf, k);
                 buf.push(b'\n');
             }
         })?;

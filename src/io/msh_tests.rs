@@ -17,26 +17,68 @@ fn with_displacement(mut raw: RawGrid) -> RawGrid {
     raw
 }
 
-/// Every kind: hone mesh -> MSH file -> reader -> model builder gives the same points, the
-/// same cells in the same node order (wedges go through Gmsh's handedness and back), positive
-/// elements, and the size field bit for bit.
-#[test]
-fn size_field_files_read_back_as_the_same_model() {
-    let dir = tempfile::tempdir().unwrap();
-    for kind in ElementKind::ALL {
-        let mut mesh = structured(kind, [2, 1, 1], [2.0, 1.0, 0.7]);
-        for p in &mut mesh.points {
-            p[0] += 0.25 * p[1] + 0.1 * p[2];
-            p[1] += 0.15 * p[2] + 0.01 * p[0];
+/// A full-order ASCII MSH 4.1 file of `mesh` with a nodal view `size_target`, laid out as Gmsh
+/// writes one (formats notes 1.5): every node, every element with all its nodes in Gmsh order.
+fn full_order_msh(mesh: &crate::mesh::Mesh, sizes: &[f64]) -> String {
+    use std::fmt::Write as _;
+    let (n, e, dim) = (mesh.node_count(), mesh.element_count(), mesh.dimension);
+    let mut t =
+        format!("$MeshFormat\n4.1 0 8\n$EndMeshFormat\n$Nodes\n1 {n} 1 {n}\n{dim} 1 0 {n}\n");
+    for i in 1..=n {
+        writeln!(t, "{i}").unwrap();
+    }
+    for p in &mesh.points {
+        writeln!(t, "{} {} {}", p[0], p[1], p[2]).unwrap();
+    }
+    writeln!(t, "$EndNodes\n$Elements\n{} {e} 1 {e}", mesh.blocks.len()).unwrap();
+    for b in &mesh.blocks {
+        let q = vtk_to_gmsh(b.kind);
+        writeln!(t, "{dim} 1 {} {}", gmsh_number(b.kind), b.len()).unwrap();
+        for i in 0..b.len() {
+            let cell = b.cell(i);
+            write!(t, "{}", b.first_element + i + 1).unwrap();
+            for &k in &q[..b.kind.node_count()] {
+                write!(t, " {}", cell[k] + 1).unwrap();
+            }
+            t.push('\n');
         }
-        let sizes: Vec<f64> = mesh
-            .points
-            .iter()
-            .map(|p| 0.1 + p[0] / 7.0 + p[1] * 1e-9)
-            .collect();
-        let path = dir.path().join("m.msh");
-        write_msh_size_field(&path, None, &mesh, &sizes).unwrap();
-        let raw = read_msh(&path).unwrap();
+    }
+    writeln!(
+        t,
+        "$EndElements\n$NodeData\n1\n\"size_target\"\n1\n0.0\n3\n0\n1\n{n}"
+    )
+    .unwrap();
+    for (i, h) in sizes.iter().enumerate() {
+        writeln!(t, "{} {h}", i + 1).unwrap();
+    }
+    t.push_str("$EndNodeData\n");
+    t
+}
+
+/// A slightly skewed two-element mesh of `kind` with a size field that differs at every node.
+fn skewed(kind: ElementKind) -> (crate::mesh::Mesh, Vec<f64>) {
+    let mut mesh = structured(kind, [2, 1, 1], [2.0, 1.0, 0.7]);
+    for p in &mut mesh.points {
+        p[0] += 0.25 * p[1] + 0.1 * p[2];
+        p[1] += 0.15 * p[2] + 0.01 * p[0];
+    }
+    let sizes: Vec<f64> = mesh
+        .points
+        .iter()
+        .map(|p| 0.1 + p[0] / 7.0 + p[1] * 1e-9)
+        .collect();
+    (mesh, sizes)
+}
+
+/// Every kind: hone mesh -> full-order MSH file in Gmsh's node order -> reader -> model builder
+/// gives the same points, the same cells in the same node order (wedges go through Gmsh's
+/// handedness and back), positive elements, and the nodal view bit for bit.
+#[test]
+fn full_order_files_read_back_as_the_same_model() {
+    for kind in ElementKind::ALL {
+        let (mesh, sizes) = skewed(kind);
+        let text = full_order_msh(&mesh, &sizes);
+        let raw = read_msh_bytes(text.as_bytes(), "m.msh").unwrap();
         assert_eq!(raw.cell_count(), mesh.element_count(), "{}", kind.name());
         let h = raw.point_array("size_target").unwrap();
         assert_eq!(h.values, sizes, "{}", kind.name());
@@ -56,6 +98,59 @@ fn size_field_files_read_back_as_the_same_model() {
         assert_eq!(m2.blocks.len(), 1);
         assert_eq!(m2.blocks[0].kind, kind);
         assert_eq!(m2.blocks[0].nodes, mesh.blocks[0].nodes, "{}", kind.name());
+        assert!(check_geometry(m2).is_empty(), "{}", kind.name());
+    }
+}
+
+/// Every kind: the size-field writer's file reads back as the linear mesh of the corners: the
+/// corner points in node order, each element as its linear counterpart with its corners in the
+/// same order, positive elements, and the corner sizes bit for bit.
+#[test]
+fn size_field_files_read_back_as_the_linear_corner_mesh() {
+    let dir = tempfile::tempdir().unwrap();
+    for kind in ElementKind::ALL {
+        let (mesh, sizes) = skewed(kind);
+        let path = dir.path().join("m.msh");
+        write_msh_size_field(&path, None, &mesh, &sizes).unwrap();
+        let raw = read_msh(&path).unwrap();
+        let nv = kind.vertex_count();
+        let mut corners: Vec<u32> = mesh.blocks[0]
+            .nodes
+            .chunks(kind.node_count())
+            .flat_map(|c| c[..nv].to_vec())
+            .collect();
+        corners.sort_unstable();
+        corners.dedup();
+        let corner_sizes: Vec<f64> = corners.iter().map(|&v| sizes[v as usize]).collect();
+        assert_eq!(raw.cell_count(), mesh.element_count(), "{}", kind.name());
+        assert_eq!(
+            raw.point_array("size_target").unwrap().values,
+            corner_sizes,
+            "{}",
+            kind.name()
+        );
+        let (model, _) =
+            build_model(&with_displacement(raw), "m.msh", &ModelOptions::default()).unwrap();
+        let m2 = &model.mesh;
+        assert_eq!(m2.points.len(), corners.len(), "{}", kind.name());
+        for (a, &v) in m2.points.iter().zip(&corners) {
+            assert_eq!(
+                a.map(f64::to_bits),
+                mesh.points[v as usize].map(f64::to_bits)
+            );
+        }
+        assert_eq!(m2.blocks[0].kind, kind.linear(), "{}", kind.name());
+        let expected: Vec<u32> = mesh.blocks[0]
+            .nodes
+            .chunks(kind.node_count())
+            .flat_map(|c| {
+                c[..nv]
+                    .iter()
+                    .map(|v| corners.binary_search(v).unwrap() as u32)
+                    .collect::<Vec<_>>()
+            })
+            .collect();
+        assert_eq!(m2.blocks[0].nodes, expected, "{}", kind.name());
         assert!(check_geometry(m2).is_empty(), "{}", kind.name());
     }
 }

@@ -120,12 +120,12 @@ pub(crate) fn write_pos_text(
                             if j > 0 {
                                 buf.push(b',');
                             }
-                            text.push_coord(buf, v as usize, 0);
+                            text.push_coord(buf, v, 0);
                             buf.push(b',');
-                            text.push_coord(buf, v as usize, 1);
+                            text.push_coord(buf, v, 1);
                             buf.push(b',');
                             if three {
-                                text.push_coord(buf, v as usize, 2);
+                                text.push_coord(buf, v, 2);
                             } else {
                                 buf.extend_from_slice(&zero);
                             }
@@ -135,7 +135,7 @@ pub(crate) fn write_pos_text(
                             if j > 0 {
                                 buf.push(b',');
                             }
-                            text.push_size(buf, v as usize);
+                            text.push_size(buf, v);
                         }
                         buf.extend_from_slice(b"};\n");
                     }

@@ -64,41 +64,89 @@ impl NumberText {
     }
 }
 
-/// A nodal size field with its numbers formatted once: coordinates (three per node) and sizes,
-/// shared by the `.pos`, MSH, MEDIT and CSV writers of one plan.
+/// The corner (vertex) nodes of a mesh with the coordinates and sizes of a nodal size field
+/// formatted once, shared by the `.pos`, MSH and MEDIT writers of one plan. These files carry
+/// the field on the linear mesh of the corners: a plan's field is linear between corners
+/// (mid-side and face nodes hold the interpolation of their element's corners,
+/// [`crate::plan::field::interpolate_non_vertex`]), so the corners hold all of it.
 pub(crate) struct NodeText {
-    /// `x, y, z` of node `i` at `3 i .. 3 i + 3`.
-    pub(crate) coords: NumberText,
-    /// Size of node `i`.
-    pub(crate) sizes: NumberText,
+    /// Corner number of each mesh node, 1.. in node order; 0 for a node that is no corner.
+    number: Vec<u32>,
+    /// Node index of each corner, in corner order.
+    corners: Vec<u32>,
+    /// `x, y, z` of corner `k` at `3 k .. 3 k + 3`.
+    coords: NumberText,
+    /// Size of corner `k`.
+    sizes: NumberText,
 }
 
 impl NodeText {
     /// Checks `sizes` against `mesh` ([`check_sizes`]; `path` names the output in errors),
-    /// then formats the mesh's coordinates and the sizes.
+    /// then numbers the corners and formats their coordinates and sizes.
     pub(crate) fn checked(path: &Path, mesh: &Mesh, sizes: &[f64]) -> Result<Self, IoError> {
         check_sizes(&path.display().to_string(), mesh.node_count(), sizes)?;
+        let mut number = vec![0u32; mesh.node_count()];
+        for b in &mesh.blocks {
+            let nv = b.kind.vertex_count();
+            for i in 0..b.len() {
+                for &v in &b.cell(i)[..nv] {
+                    number[v as usize] = 1;
+                }
+            }
+        }
+        let mut corners: Vec<u32> = Vec::new();
+        for (v, slot) in number.iter_mut().enumerate() {
+            if *slot != 0 {
+                corners.push(v as u32);
+                *slot = corners.len() as u32;
+            }
+        }
+        let coords: Vec<f64> = corners
+            .iter()
+            .flat_map(|&v| mesh.points[v as usize])
+            .collect();
+        let corner_sizes: Vec<f64> = corners.iter().map(|&v| sizes[v as usize]).collect();
         Ok(Self {
-            coords: NumberText::new(mesh.points.as_flattened()),
-            sizes: NumberText::new(sizes),
+            number,
+            corners,
+            coords: NumberText::new(&coords),
+            sizes: NumberText::new(&corner_sizes),
         })
     }
 
-    /// Number of nodes.
-    pub(crate) fn len(&self) -> usize {
-        self.sizes.slots.len()
+    /// Node index of each corner, in corner order.
+    pub(crate) fn corners(&self) -> &[u32] {
+        &self.corners
     }
 
-    /// Appends coordinate `c` of node `node`.
+    /// Corner number (1..) of mesh node `node`, 0 when it is no corner.
     #[inline]
-    pub(crate) fn push_coord(&self, out: &mut Vec<u8>, node: usize, c: usize) {
-        self.coords.push(out, 3 * node + c);
+    pub(crate) fn number(&self, node: u32) -> u32 {
+        self.number[node as usize]
     }
 
-    /// Appends the size of node `node`.
+    /// Appends coordinate `c` of corner `k` (0-based corner order).
     #[inline]
-    pub(crate) fn push_size(&self, out: &mut Vec<u8>, node: usize) {
-        self.sizes.push(out, node);
+    pub(crate) fn push_corner_coord(&self, out: &mut Vec<u8>, k: usize, c: usize) {
+        self.coords.push(out, 3 * k + c);
+    }
+
+    /// Appends the size of corner `k` (0-based corner order).
+    #[inline]
+    pub(crate) fn push_corner_size(&self, out: &mut Vec<u8>, k: usize) {
+        self.sizes.push(out, k);
+    }
+
+    /// Appends coordinate `c` of mesh node `node`, which must be a corner.
+    #[inline]
+    pub(crate) fn push_coord(&self, out: &mut Vec<u8>, node: u32, c: usize) {
+        self.push_corner_coord(out, self.number(node) as usize - 1, c);
+    }
+
+    /// Appends the size of mesh node `node`, which must be a corner.
+    #[inline]
+    pub(crate) fn push_size(&self, out: &mut Vec<u8>, node: u32) {
+        self.push_corner_size(out, self.number(node) as usize - 1);
     }
 }
 
@@ -191,7 +239,7 @@ pub(crate) fn write_chunked(
 }
 
 /// Checks that `sizes` holds one finite value per mesh node; `path` names the output file.
-fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
+pub(crate) fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
     if sizes.len() != node_count {
         return Err(IoError::ArrayLength {
             file: path.to_string(),

@@ -31,7 +31,7 @@ pub use crate::singular::clamped::{
     clamped_free_exponent, clamped_free_root, kappa_plane_strain, kappa_plane_stress,
 };
 pub use crate::singular::williams::{corner_exponent, williams_mode_one, williams_mode_two};
-pub use gradation::limit_gradation;
+pub use gradation::{limit_gradation, EdgeGraph};
 pub use marking::{dorfler, fraction, maximum};
 pub use planner::{plan, Plan, PlanInput, PlanSettings, Strategy};
 pub use size_law::{

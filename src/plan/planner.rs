@@ -19,7 +19,7 @@
 //! the gradation, which all add elements).
 
 use super::field::{element_sizes, interpolate_non_vertex, vertex_minimum, ElementCounter};
-use super::{check_range, check_values, dorfler, fraction, limit_gradation, maximum, PlanError};
+use super::{check_range, check_values, dorfler, fraction, maximum, EdgeGraph, PlanError};
 use crate::mesh::Mesh;
 use rayon::prelude::*;
 
@@ -333,7 +333,7 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
     let floor = settings
         .singular_floor
         .unwrap_or(DEFAULT_SINGULAR_FLOOR * diagonal);
-    let edges = mesh.vertex_edges();
+    let graph = EdgeGraph::new(&mesh.points, &mesh.vertex_edges())?;
     let counter = ElementCounter::new(mesh);
     // Vertices of singular elements keep at least the floor (capped by the element's current
     // size, so the floor never coarsens): the vertex minimum would otherwise hand them a
@@ -387,7 +387,7 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
                 *h = f64::MAX;
             }
         });
-        limit_gradation(&mesh.points, &edges, &mut nodal, settings.grading)?;
+        graph.limit(&mut nodal, settings.grading)?;
         nodal.par_iter_mut().for_each(|h| {
             if *h == f64::MAX {
                 *h = f64::INFINITY;

@@ -3,7 +3,8 @@
 //! chunks and written in order, so big meshes write fast and the bytes never depend on the
 //! number of threads. Numbers use the shortest round-trip form.
 
-use crate::io::text_out::{push_f64, push_int, write_chunked, NodeText};
+use crate::io::text_out::{push_f64, push_int, write_chunked};
+use crate::mesh::Mesh;
 use serde_json::Value;
 use std::io::{self, Write};
 
@@ -96,16 +97,17 @@ pub fn write_plan_csv(w: &mut dyn Write, rows: &ElementRows) -> io::Result<()> {
     })
 }
 
-/// `sizes.csv`: `x,y,z,size` per node, in node order, from the plan's formatted node numbers.
-pub(crate) fn write_sizes_csv(w: &mut dyn Write, nodes: &NodeText) -> io::Result<()> {
+/// `sizes.csv`: `x,y,z,size` per node (every node, mid-side nodes included), in node order.
+/// `sizes` must hold one finite value per node (checked by the caller).
+pub(crate) fn write_sizes_csv(w: &mut dyn Write, mesh: &Mesh, sizes: &[f64]) -> io::Result<()> {
     w.write_all(b"x,y,z,size\n")?;
-    write_chunked(w, nodes.len(), |range, out| {
+    write_chunked(w, mesh.node_count(), |range, out| {
         for i in range {
-            for c in 0..3 {
-                nodes.push_coord(out, i, c);
+            for c in mesh.points[i] {
+                push_f64(out, c);
                 out.push(b',');
             }
-            nodes.push_size(out, i);
+            push_f64(out, sizes[i]);
             out.push(b'\n');
         }
     })
