@@ -89,3 +89,42 @@ fn bad_inputs_are_typed_errors() {
     assert!(limit_gradation(&points, &[(0, 1)], &mut [1.0], 0.2).is_err());
     assert!(limit_gradation(&points, &[(0, 1)], &mut [1.0, f64::NAN], 0.2).is_err());
 }
+
+/// The heap starts from the nodes that lower a neighbour only; the result is still the minimum
+/// over all paths, `h_j = min_i (h_i + g * path length)` (Persson 2006, discrete form), checked
+/// against Bellman-Ford relaxation of every edge until nothing changes (an independent way to
+/// the same fixed point; equal up to the rounding of path sums taken in another order). The
+/// edge graph is reused for a second field, as a plan does.
+#[test]
+fn seeded_heap_gives_the_shortest_path_field() {
+    let (points, edges) = grid(15);
+    let graph = EdgeGraph::new(&points, &edges).unwrap();
+    for (g, shift) in [(0.3, 3usize), (0.05, 11)] {
+        let input: Vec<f64> = (0..points.len())
+            .map(|k| 0.02 + ((k * 29 + shift) % 31) as f64 * 0.15)
+            .collect();
+        let mut expected = input.clone();
+        loop {
+            let mut changed = false;
+            for &(a, b) in &edges {
+                let (a, b) = (a as usize, b as usize);
+                let d = g * distance(&points[a], &points[b]);
+                for (i, j) in [(a, b), (b, a)] {
+                    if expected[i] + d < expected[j] {
+                        expected[j] = expected[i] + d;
+                        changed = true;
+                    }
+                }
+            }
+            if !changed {
+                break;
+            }
+        }
+        let mut h = input.clone();
+        graph.limit(&mut h, g).unwrap();
+        assert_ne!(h, input, "g = {g}: the field had to change");
+        for (k, (a, b)) in h.iter().zip(&expected).enumerate() {
+            assert!((a - b).abs() <= 1e-13 * b, "g = {g}, node {k}: {a} vs {b}");
+        }
+    }
+}
