@@ -156,9 +156,11 @@ impl ElementCounter {
                 // the usual case) have a constant Jacobian: one determinant of the corners
                 // instead of one of all nodes per point.
                 let simplex = matches!(linear, ElementKind::Tri3 | ElementKind::Tet4);
-                let weighted_det: Vec<f64> = (0..b.len())
-                    .into_par_iter()
-                    .flat_map_iter(|c| {
+                let mut weighted_det = vec![0.0; b.len() * points];
+                weighted_det
+                    .par_chunks_mut(points)
+                    .enumerate()
+                    .for_each(|(c, out)| {
                         let nodes = b.cell(c);
                         let mut coords = [[0.0; 3]; MAX_NODES];
                         mesh.gather_coords(nodes, &mut coords[..nn]);
@@ -171,17 +173,15 @@ impl ElementCounter {
                         } else {
                             0.0
                         };
-                        let own = &own;
-                        (0..points).map(move |k| {
-                            own.weights[k]
+                        for (k, w) in out.iter_mut().enumerate() {
+                            *w = own.weights[k]
                                 * if straight {
                                     constant
                                 } else {
                                     jacobian_determinant(dim, &coords[..nn], own.dn_at(k)).abs()
-                                }
-                        })
-                    })
-                    .collect();
+                                };
+                        }
+                    });
                 BlockCounter {
                     block,
                     vertices: nv,
