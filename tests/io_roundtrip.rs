@@ -235,6 +235,23 @@ fn writer_refuses_inconsistent_views() {
         err.to_string().contains("'u': 5 values, expected 6"),
         "{err}"
     );
+    // A cell naming a point that does not exist.
+    let mut connectivity = m.connectivity.clone();
+    connectivity[7] = 6;
+    let grid = GridView {
+        points: &m.points,
+        connectivity: &connectivity,
+        offsets: &m.offsets,
+        types: &m.types,
+        point_data: &[],
+        cell_data: &[],
+    };
+    let err = write_vtu(Vec::new(), &grid, &WriteOptions::default()).unwrap_err();
+    assert!(
+        err.to_string()
+            .contains("connectivity entry 7 is point 6, expected a point index below 6"),
+        "{err}"
+    );
 }
 
 #[test]

@@ -14,6 +14,7 @@ use crate::recovery::RecoveryMethod;
 use crate::report::{EstimateReport, TopElement};
 use crate::singular::{format_point, SpotKind};
 use anyhow::{anyhow, Context, Result};
+use rayon::prelude::*;
 
 /// Runs the estimate stage with progress display; errors name the file.
 fn compute(
@@ -194,11 +195,13 @@ pub fn write_annotated(
     let est = &computed.estimate;
     let n = model.mesh.element_count();
     let nodal = computed.recovered.nodal_field(model.mesh.node_count());
-    let stress: Vec<f64> = nodal.iter().flatten().copied().collect();
-    let vm: Vec<f64> = nodal.iter().map(von_mises).collect();
-    let error_energy: Vec<f64> = (0..n).map(|e| est.error_energy(e)).collect();
-    let error_share: Vec<f64> = (0..n).map(|e| est.error_share(e)).collect();
-    let error_density: Vec<f64> = (0..n).map(|e| est.error_density(e)).collect();
+    let stress: &[f64] = bytemuck::cast_slice(&nodal);
+    let vm: Vec<f64> = nodal.par_iter().map(von_mises).collect();
+    let per_element =
+        |f: &(dyn Fn(usize) -> f64 + Sync)| -> Vec<f64> { (0..n).into_par_iter().map(f).collect() };
+    let error_energy = per_element(&|e| est.error_energy(e));
+    let error_share = per_element(&|e| est.error_share(e));
+    let error_density = per_element(&|e| est.error_density(e));
     let sizes = model.mesh.size_now();
     let options = WriteOptions {
         encoding: if ascii {
@@ -217,7 +220,7 @@ pub fn write_annotated(
         Field {
             name: "stress_recovered",
             components: 6,
-            values: FieldValues::F64(&stress),
+            values: FieldValues::F64(stress),
         },
         one("von_mises_recovered", &vm),
     ];

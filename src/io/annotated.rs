@@ -3,6 +3,8 @@
 
 use super::{write_atomically, write_vtu, ArrayData, ArrayView, GridView, IoError, WriteOptions};
 use crate::mesh::{Mesh, Model};
+use rayon::prelude::*;
+use std::borrow::Cow;
 use std::path::Path;
 
 /// Values of one output field.
@@ -69,6 +71,9 @@ pub fn cells_in_file_order(mesh: &Mesh) -> CellArrays {
 /// Writes `model` with `point_fields` and `cell_fields` to `path` atomically, refusing to
 /// overwrite `protect` (the input file). Cells are written in input-file order and a cell field
 /// `file_cell` gives each cell's index in the input file.
+///
+/// When hone's element order is the file's (one cell kind, the usual case) the mesh's node
+/// lists and the cell fields are written as they are, without reordered copies.
 pub fn write_model_vtu(
     path: &Path,
     protect: Option<&Path>,
@@ -78,37 +83,56 @@ pub fn write_model_vtu(
     options: &WriteOptions,
 ) -> Result<(), IoError> {
     let mesh = &model.mesh;
-    let CellArrays {
-        order,
-        connectivity,
-        offsets,
-        types,
-    } = cells_in_file_order(mesh);
-    let file_cell: Vec<i32> = order.iter().map(|&e| mesh.file_cell[e] as i32).collect();
-    let displacement: Vec<f64> = model.displacement.iter().flatten().copied().collect();
-    let mut reordered_f64: Vec<Vec<f64>> = Vec::new();
-    let mut reordered_i32: Vec<Vec<i32>> = Vec::new();
-    for f in cell_fields {
-        let c = f.components;
-        match f.values {
-            FieldValues::F64(v) => reordered_f64.push(
-                order
-                    .iter()
-                    .flat_map(|&e| v[e * c..(e + 1) * c].iter().copied())
+    let order = file_order(mesh);
+    let in_file_order = order.par_iter().enumerate().all(|(i, &e)| i == e);
+    let (connectivity, offsets, types): (Cow<[u32]>, Vec<u64>, Vec<u8>) = match &mesh.blocks[..] {
+        [b] if in_file_order => {
+            let nn = b.kind.node_count() as u64;
+            (
+                Cow::Borrowed(&b.nodes),
+                (1..=b.len() as u64)
+                    .into_par_iter()
+                    .map(|c| c * nn)
                     .collect(),
-            ),
-            FieldValues::I32(v) => reordered_i32.push(
-                order
-                    .iter()
-                    .flat_map(|&e| v[e * c..(e + 1) * c].iter().copied())
-                    .collect(),
-            ),
+                vec![b.kind.vtk_id(); b.len()],
+            )
+        }
+        _ => {
+            let cells = cells_in_file_order(mesh);
+            (Cow::Owned(cells.connectivity), cells.offsets, cells.types)
+        }
+    };
+    let file_cell: Vec<i32> = order
+        .par_iter()
+        .map(|&e| mesh.file_cell[e] as i32)
+        .collect();
+    let displacement: &[f64] = bytemuck::cast_slice(&model.displacement);
+    let reordered = |v: &[f64], c: usize| -> Vec<f64> {
+        order
+            .par_iter()
+            .flat_map_iter(|&e| v[e * c..(e + 1) * c].iter().copied())
+            .collect()
+    };
+    let reordered_i32 = |v: &[i32], c: usize| -> Vec<i32> {
+        order
+            .par_iter()
+            .flat_map_iter(|&e| v[e * c..(e + 1) * c].iter().copied())
+            .collect()
+    };
+    let mut owned_f64: Vec<Vec<f64>> = Vec::new();
+    let mut owned_i32: Vec<Vec<i32>> = Vec::new();
+    if !in_file_order {
+        for f in cell_fields {
+            match f.values {
+                FieldValues::F64(v) => owned_f64.push(reordered(v, f.components)),
+                FieldValues::I32(v) => owned_i32.push(reordered_i32(v, f.components)),
+            }
         }
     }
     let mut points = vec![ArrayView {
         name: "displacement",
         components: 3,
-        data: ArrayData::F64(&displacement),
+        data: ArrayData::F64(displacement),
     }];
     for f in point_fields {
         points.push(ArrayView {
@@ -117,26 +141,28 @@ pub fn write_model_vtu(
             data: view(f.values),
         });
     }
-    let mut cells = Vec::new();
+    let mut cell_views = Vec::new();
     let (mut i_f, mut i_i) = (0, 0);
     for f in cell_fields {
         let data = match f.values {
+            FieldValues::F64(v) if in_file_order => ArrayData::F64(v),
+            FieldValues::I32(v) if in_file_order => ArrayData::I32(v),
             FieldValues::F64(_) => {
                 i_f += 1;
-                ArrayData::F64(&reordered_f64[i_f - 1])
+                ArrayData::F64(&owned_f64[i_f - 1])
             }
             FieldValues::I32(_) => {
                 i_i += 1;
-                ArrayData::I32(&reordered_i32[i_i - 1])
+                ArrayData::I32(&owned_i32[i_i - 1])
             }
         };
-        cells.push(ArrayView {
+        cell_views.push(ArrayView {
             name: f.name,
             components: f.components,
             data,
         });
     }
-    cells.push(ArrayView {
+    cell_views.push(ArrayView {
         name: "file_cell",
         components: 1,
         data: ArrayData::I32(&file_cell),
@@ -147,7 +173,7 @@ pub fn write_model_vtu(
         offsets: &offsets,
         types: &types,
         point_data: &points,
-        cell_data: &cells,
+        cell_data: &cell_views,
     };
     write_atomically(path, protect, |w| write_vtu(w, &grid, options))
 }
@@ -156,5 +182,124 @@ fn view(values: FieldValues<'_>) -> ArrayData<'_> {
     match values {
         FieldValues::F64(v) => ArrayData::F64(v),
         FieldValues::I32(v) => ArrayData::I32(v),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::io::{build_model, read_vtu, DataArray, ModelOptions, RawGrid, ScalarType};
+
+    /// A 3 x 1 strip: triangle, quad, triangle in the file (element order groups kinds).
+    fn strip(interleaved: bool) -> RawGrid {
+        let points = vec![
+            [0.0, 0.0, 0.0],
+            [1.0, 0.0, 0.0],
+            [2.0, 0.0, 0.0],
+            [3.0, 0.0, 0.0],
+            [0.0, 1.0, 0.0],
+            [1.0, 1.0, 0.0],
+            [2.0, 1.0, 0.0],
+            [3.0, 1.0, 0.0],
+        ];
+        let (connectivity, offsets, types) = if interleaved {
+            (
+                vec![0, 1, 5, 0, 5, 4, 1, 2, 6, 5, 2, 3, 7, 2, 7, 6],
+                vec![3, 6, 10, 13, 16],
+                vec![5, 5, 9, 5, 5],
+            )
+        } else {
+            (
+                vec![0, 1, 5, 4, 1, 2, 6, 5, 2, 3, 7, 6],
+                vec![4, 8, 12],
+                vec![9, 9, 9],
+            )
+        };
+        // A plane model: no z displacement.
+        let displacement: Vec<f64> = (0..points.len() * 3)
+            .map(|i| if i % 3 == 2 { 0.0 } else { i as f64 * 0.5 })
+            .collect();
+        RawGrid {
+            points,
+            connectivity,
+            offsets,
+            types,
+            point_data: vec![DataArray {
+                name: "displacement".into(),
+                components: 3,
+                scalar_type: ScalarType::Float64,
+                values: displacement,
+            }],
+            cell_data: Vec::new(),
+        }
+    }
+
+    /// Cells come back in file order with their node lists and types, cell fields given in
+    /// hone's element order land on the right file cells, `file_cell` numbers them, and the
+    /// displacement is the model's: for a mixed file (reordered copies) and a one-kind file
+    /// (written without copies).
+    #[test]
+    fn cells_and_fields_come_back_in_file_order() {
+        let dir = tempfile::tempdir().unwrap();
+        for interleaved in [true, false] {
+            let raw = strip(interleaved);
+            let (model, _) = build_model(&raw, "strip.vtu", &ModelOptions::default()).unwrap();
+            let n = model.mesh.element_count();
+            assert_eq!(n, raw.types.len());
+            // A field naming each element's file index, and a two-component one.
+            let own: Vec<f64> = (0..n).map(|e| model.mesh.file_cell[e] as f64).collect();
+            let pair: Vec<f64> = (0..n)
+                .flat_map(|e| [e as f64, -(model.mesh.file_cell[e] as f64)])
+                .collect();
+            let mark: Vec<i32> = (0..n)
+                .map(|e| 10 * model.mesh.file_cell[e] as i32)
+                .collect();
+            let path = dir.path().join("out.vtu");
+            write_model_vtu(
+                &path,
+                None,
+                &model,
+                &[],
+                &[
+                    Field {
+                        name: "own",
+                        components: 1,
+                        values: FieldValues::F64(&own),
+                    },
+                    Field {
+                        name: "pair",
+                        components: 2,
+                        values: FieldValues::F64(&pair),
+                    },
+                    Field {
+                        name: "mark",
+                        components: 1,
+                        values: FieldValues::I32(&mark),
+                    },
+                ],
+                &WriteOptions::default(),
+            )
+            .unwrap();
+            let back = read_vtu(&path).unwrap();
+            assert_eq!(back.connectivity, raw.connectivity, "{interleaved}");
+            assert_eq!(back.offsets, raw.offsets);
+            assert_eq!(back.types, raw.types);
+            assert_eq!(back.points, raw.points);
+            assert_eq!(
+                back.point_array("displacement").unwrap().values,
+                raw.point_data[0].values
+            );
+            let file_index: Vec<f64> = (0..n).map(|k| k as f64).collect();
+            assert_eq!(back.cell_array("own").unwrap().values, file_index);
+            assert_eq!(back.cell_array("file_cell").unwrap().values, file_index);
+            let marks: Vec<f64> = (0..n).map(|k| 10.0 * k as f64).collect();
+            assert_eq!(back.cell_array("mark").unwrap().values, marks);
+            let pairs = &back.cell_array("pair").unwrap().values;
+            for k in 0..n {
+                assert_eq!(pairs[2 * k + 1], -(k as f64), "{interleaved}: cell {k}");
+                let e = pairs[2 * k] as usize;
+                assert_eq!(model.mesh.file_cell[e] as usize, k);
+            }
+        }
     }
 }

@@ -67,6 +67,25 @@ impl Src<'_> {
         self.len() * self.scalar().size()
     }
 
+    /// The bytes the values take in the file when they need no conversion: `order` is the
+    /// machine's and the stored type is the written one, or point ids stored as `u32` are
+    /// written as Int32 (`u32 as i32` keeps the bytes). Lets big arrays go to the file without
+    /// a copy.
+    pub(crate) fn native_bytes(&self, order: ByteOrder) -> Option<&[u8]> {
+        if (order == ByteOrder::Little) != cfg!(target_endian = "little") {
+            return None;
+        }
+        match self {
+            Src::F64(s) => Some(bytemuck::cast_slice(s)),
+            Src::F32(s) => Some(bytemuck::cast_slice(s)),
+            Src::I32(s) => Some(bytemuck::cast_slice(s)),
+            Src::I64(s) => Some(bytemuck::cast_slice(s)),
+            Src::U8(s) => Some(s),
+            Src::U32AsI32(s) => Some(bytemuck::cast_slice(s)),
+            Src::U32AsI64(_) | Src::U64AsI64(_) | Src::U64AsI32(_) => None,
+        }
+    }
+
     /// Appends values `r` as bytes in `order`.
     pub(crate) fn bytes_into(&self, r: Range<usize>, order: ByteOrder, out: &mut Vec<u8>) {
         let native = (order == ByteOrder::Little) == cfg!(target_endian = "little");

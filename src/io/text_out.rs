@@ -60,7 +60,11 @@ impl NumberText {
     #[inline]
     pub(crate) fn push(&self, out: &mut Vec<u8>, i: usize) {
         let (bytes, len) = &self.slots[i];
-        out.extend_from_slice(&bytes[..*len as usize]);
+        // A fixed-size copy of the whole slot, then the tail cut off: cheaper than a
+        // variable-length copy for the tens of millions of numbers of a big `.pos` view.
+        let at = out.len();
+        out.extend_from_slice(bytes);
+        out.truncate(at + *len as usize);
     }
 }
 
@@ -167,18 +171,18 @@ pub(crate) mod int_text {
     impl Int for u64 {
         #[inline]
         fn push(self, out: &mut Vec<u8>) {
+            // Digits written front to back into a fixed buffer, copied whole and cut to length
+            // (a fixed-size copy instead of a variable-length one, as in `NumberText::push`).
+            let digits = self.checked_ilog10().unwrap_or(0) as usize + 1;
             let mut buf = [0u8; 20];
-            let mut i = buf.len();
             let mut v = self;
-            loop {
-                i -= 1;
-                buf[i] = b'0' + (v % 10) as u8;
+            for d in buf[..digits].iter_mut().rev() {
+                *d = b'0' + (v % 10) as u8;
                 v /= 10;
-                if v == 0 {
-                    break;
-                }
             }
-            out.extend_from_slice(&buf[i..]);
+            let at = out.len();
+            out.extend_from_slice(&buf);
+            out.truncate(at + digits);
         }
     }
 

@@ -2,6 +2,8 @@
 
 use std::io::{self, BufWriter, Write};
 
+use rayon::prelude::*;
+
 use super::encode::{b64_len, put_word, zip, B64Stream, Src, Zipped, STREAM_VALUES};
 use super::scalar::{ByteOrder, HeaderType};
 
@@ -139,6 +141,16 @@ fn check_view(grid: &GridView) -> io::Result<()> {
         return Err(invalid(format!(
             "cannot write grid: last cell offset is {prev}, expected the connectivity length {}",
             grid.connectivity.len()
+        )));
+    }
+    if let Some(k) = grid
+        .connectivity
+        .par_iter()
+        .position_first(|&p| p as usize >= np)
+    {
+        return Err(invalid(format!(
+            "cannot write grid: connectivity entry {k} is point {}, expected a point index below {np}",
+            grid.connectivity[k]
         )));
     }
     for (views, n, per) in [
@@ -363,6 +375,9 @@ fn write_raw_block(
         &mut buf,
     );
     w.write_all(&buf)?;
+    if let Some(bytes) = e.src.native_bytes(opts.byte_order) {
+        return w.write_all(bytes);
+    }
     let n = e.src.len();
     let mut i = 0;
     while i < n {
