@@ -11,7 +11,7 @@ use crate::io::{
 };
 use crate::mesh::Model;
 use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
-use crate::report::plan_files::{write_plan_csv, write_plan_json, write_sizes_csv, ElementRows};
+use crate::report::plan_files::{write_plan_tables, write_sizes_csv, ElementRows};
 use crate::report::{percent, PlanReport, SpotLine};
 use crate::singular::{screen_with, PoissonRatio, ScreeningOptions};
 use anyhow::{bail, Context, Result};
@@ -381,14 +381,14 @@ fn write_plan_files(
     type Job<'a> = Box<dyn FnOnce() -> Result<()> + Send + 'a>;
     let jobs: Vec<Job<'_>> = vec![
         Box::new(|| {
-            write_atomically(&files[0], Some(input), |w| {
-                write_plan_json(w, summary, &rows)
+            // Both tables in one pass; each file is still written atomically on its own.
+            write_atomically(&files[0], Some(input), |json| {
+                write_atomically(&files[1], Some(input), |csv| {
+                    write_plan_tables(json, csv, summary, &rows)
+                })
+                .map_err(std::io::Error::other)
             })
-            .with_context(|| context(0))
-        }),
-        Box::new(|| {
-            write_atomically(&files[1], Some(input), |w| write_plan_csv(w, &rows))
-                .with_context(|| context(1))
+            .with_context(|| format!("{} and {}", context(0), files[1].display()))
         }),
         Box::new(|| {
             write_atomically(&files[2], Some(input), |w| {

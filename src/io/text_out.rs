@@ -219,23 +219,40 @@ pub(crate) fn write_chunked(
     n: usize,
     f: impl Fn(Range<usize>, &mut Vec<u8>) + Sync,
 ) -> io::Result<()> {
+    write_chunked_to([w], n, |r, [buf]| f(r, buf))
+}
+
+/// [`write_chunked`] into `K` files at once: `f(range, buffers)` formats each chunk into one
+/// buffer per file, so files that print the same numbers (plan.json and plan.csv) format them
+/// once. Each file gets its chunks in order.
+pub(crate) fn write_chunked_to<const K: usize>(
+    mut w: [&mut dyn Write; K],
+    n: usize,
+    f: impl Fn(Range<usize>, &mut [Vec<u8>; K]) + Sync,
+) -> io::Result<()> {
     let batch = CHUNK * CHUNKS_IN_FLIGHT;
-    let mut buffers: Vec<Vec<u8>> = Vec::new();
+    let mut buffers: Vec<[Vec<u8>; K]> = Vec::new();
     let mut start = 0;
     while start < n {
         let end = (start + batch).min(n);
         let chunks = (end - start).div_ceil(CHUNK);
-        buffers.resize_with(buffers.len().max(chunks), Vec::new);
+        buffers.resize_with(buffers.len().max(chunks), || {
+            std::array::from_fn(|_| Vec::new())
+        });
         buffers[..chunks]
             .par_iter_mut()
             .enumerate()
-            .for_each(|(k, buf)| {
-                buf.clear();
+            .for_each(|(k, bufs)| {
+                for b in bufs.iter_mut() {
+                    b.clear();
+                }
                 let s = start + k * CHUNK;
-                f(s..(s + CHUNK).min(end), buf);
+                f(s..(s + CHUNK).min(end), bufs);
             });
-        for t in &buffers[..chunks] {
-            w.write_all(t)?;
+        for bufs in &buffers[..chunks] {
+            for (out, t) in w.iter_mut().zip(bufs) {
+                out.write_all(t)?;
+            }
         }
         start = end;
     }
