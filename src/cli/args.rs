@@ -190,7 +190,7 @@ pub struct StudyArgs {
     pub model: ModelArgs,
     /// A value to follow besides strain energy, estimated error and peak von Mises (repeat
     /// for more). Syntax: [max:|min:|mean:]FIELD@PLACE with FIELD one of ux uy uz sxx syy szz
-    /// sxy syz sxz von_mises and PLACE a point x,y[,z], box(x0,y0,x1,y1) or
+    /// sxy syz sxz von_mises and PLACE a point x,y\[,z\], box(x0,y0,x1,y1) or
     /// box(x0,y0,z0,x1,y1,z1), sphere(x,y,r) or sphere(x,y,z,r). Points interpolate in the
     /// element holding them; regions reduce the nodes inside (max by default, mean weighted by
     /// volume). Examples: "ux@10,20", "max:von_mises@box(0,0,5,5)", "mean:syy@sphere(3,4,0.5)".

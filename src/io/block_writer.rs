@@ -41,7 +41,7 @@ const DIRECT_ALIGN: usize = 4096;
 static CACHED_ONLY: AtomicBool = AtomicBool::new(false);
 
 /// Makes every output go through the operating system's file cache, never straight to the
-/// disk. Direct writes (the default for files of at least [`BLOCK`] bytes, on Linux) are much
+/// disk. Direct writes (the default for files of at least 4 MB, on Linux) are much
 /// faster where the cache copy is slow (virtual machines) and no slower on solid-state disks;
 /// on a spinning disk the cache lets the program end before the disk has caught up.
 pub fn set_cached_writes(on: bool) {

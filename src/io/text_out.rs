@@ -71,8 +71,8 @@ impl NumberText {
 /// The corner (vertex) nodes of a mesh with the coordinates and sizes of a nodal size field
 /// formatted once, shared by the `.pos`, MSH and MEDIT writers of one plan. These files carry
 /// the field on the linear mesh of the corners: a plan's field is linear between corners
-/// (mid-side and face nodes hold the interpolation of their element's corners,
-/// [`crate::plan::field::interpolate_non_vertex`]), so the corners hold all of it.
+/// (the planner gives mid-side and face nodes the interpolation of their element's corners),
+/// so the corners hold all of it.
 pub(crate) struct NodeText {
     /// Corner number of each mesh node, 1.. in node order; 0 for a node that is no corner.
     number: Vec<u32>,

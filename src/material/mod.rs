@@ -155,9 +155,9 @@ impl Elasticity {
     ///
     /// 3D: D_ii = lambda + 2 mu, D_ij = lambda (normal block), D = mu on the shear diagonal;
     /// C = (1/E)[[1,-nu,-nu],...] with 2(1+nu)/E on the shear diagonal.
-    /// Plane stress: D = E/(1-nu^2)[[1,nu,0],[nu,1,0],[0,0,(1-nu)/2]] on (xx, yy, xy).
+    /// Plane stress: `D = E/(1-nu^2) [[1,nu,0],[nu,1,0],[0,0,(1-nu)/2]]` on (xx, yy, xy).
     /// Plane strain: the 3D D on (xx, yy, xy) with sigma_zz = lambda (e_xx + e_yy) reported, and
-    /// C = ((1+nu)/E)[[1-nu,-nu,0],[-nu,1-nu,0],[0,0,2]] on (xx, yy, xy) so that the energy is
+    /// `C = ((1+nu)/E) [[1-nu,-nu,0],[-nu,1-nu,0],[0,0,2]]` on (xx, yy, xy) so that the energy is
     /// consistent with e_zz = 0. Axisymmetric: the 3D D and C on (rr, zz, theta theta, rz).
     /// (Compliance forms: Zienkiewicz & Taylor, The Finite Element Method vol. 1, ch. 6; restated in
     /// the project's method sheet section 2, common practice.)

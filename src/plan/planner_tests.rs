@@ -58,7 +58,7 @@ fn graded_case() -> Case {
     Case::new(mesh, error_sq, 1.0)
 }
 
-/// Method sheet 3.8 [V] (worked numbers recomputed with `mesh_opt.py`): 4 elements, d = 2,
+/// Method sheet 3.8 \[V\] (worked numbers recomputed with `mesh_opt.py`): 4 elements, d = 2,
 /// p = 1, h = 1, ||e||_i = [0.1, 0.2, 0.05, 0.4], ||u||^2 = 10, target 5 %: optimal
 /// s = [0.5834523688, 0.4125631265, 0.8251262530, 0.2917261844].
 #[test]

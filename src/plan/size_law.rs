@@ -90,7 +90,7 @@ fn optimal_for_norm(errors: &[f64], ebar_tot: f64, p: f64, d: f64) -> OptimalPla
     }
 }
 
-/// Optimal criterion (method sheet 3.2 [V], after Li & Bettess 1995): minimise
+/// Optimal criterion (method sheet 3.2 \[V\], after Li & Bettess 1995): minimise
 /// `N = sum s_i^-d` subject to `sum ||e||_i^2 s_i^(2p) = ebar_tot^2`,
 /// `ebar_tot = etabar sqrt(||u||^2 + ||e||^2)`. With `S = sum_j ||e||_j^(2d/(2p+d))`:
 /// `s_i = (ebar_tot^2 / S)^(1/(2p)) ||e||_i^(-2/(2p+d))` and
@@ -108,7 +108,7 @@ pub fn optimal_sizes(
     Ok(optimal_for_norm(errors, ebar_tot, p, d))
 }
 
-/// Element-budget inversion of the optimal criterion (method sheet 3.2 [V]): the smallest
+/// Element-budget inversion of the optimal criterion (method sheet 3.2 \[V\]): the smallest
 /// global error reachable with `max_elements` elements is
 /// `ebar_tot = S^((2p+d)/(2d)) N^(-p/d)`, returned as the relative error
 /// `ebar_tot / sqrt(||u||^2 + ||e||^2)` together with the optimal plan for it.
@@ -133,7 +133,7 @@ pub fn optimal_budget(
     Ok((relative, optimal_for_norm(errors, ebar_tot, p, d)))
 }
 
-/// Size ratio of element i for multiplier `mu` (method sheet 3.4 [V]):
+/// Size ratio of element i for multiplier `mu` (method sheet 3.4 \[V\]):
 /// `s_i = (d / (2 q_i mu ||e||_i^2))^(1/(2 q_i + d))`.
 fn mixed_ratio(e: f64, q: f64, d: f64, mu: f64) -> f64 {
     (d / (2.0 * q * mu * e * e)).powf(1.0 / (2.0 * q + d))
@@ -152,7 +152,7 @@ fn mixed_error_sq(errors: &[f64], exponents: &[f64], d: f64, mu: f64) -> f64 {
 }
 
 /// Optimal sizes with a per-element exponent `q_i` (`p` in smooth elements, `min(p, lambda)`
-/// at singular points; method sheet 3.4 [V]). Stationarity of
+/// at singular points; method sheet 3.4 \[V\]). Stationarity of
 /// `N + mu (sum ||e||_i^2 s_i^(2 q_i) - ebar_tot^2)` gives
 /// `s_i = (d / (2 q_i mu ||e||_i^2))^(1/(2 q_i + d))`; `mu > 0` is found by bisection on
 /// `ln mu` to relative width 1e-12 (the constrained error decreases monotonically in `mu`).

@@ -1,6 +1,6 @@
 //! Stress recovery: FE stresses at sampling points, then a smooth nodal stress field.
 //!
-//! `Spr` is Zienkiewicz-Zhu superconvergent patch recovery (see [`spr`] for the rules);
+//! `Spr` is Zienkiewicz-Zhu superconvergent patch recovery (see the `spr` module for the rules);
 //! `Average` is simple nodal averaging of the elements' own stresses at each node, the crudest
 //! form of the 1987 Zienkiewicz-Zhu projection, kept for comparison.
 

@@ -1,5 +1,5 @@
 //! Smallest exponent of a clamped-free plane corner: one face held (zero displacement), the
-//! other traction-free, interior angle `alpha` (method sheet 4.2 [V] gives the check values).
+//! other traction-free, interior angle `alpha` (method sheet 4.2 \[V\] gives the check values).
 //!
 //! Derivation (Airy function `phi = r^(lambda+1) F(theta)`,
 //! `F = A sin((lambda+1) theta) + B cos((lambda+1) theta) + C sin((lambda-1) theta)
@@ -129,7 +129,7 @@ pub fn clamped_free_root(alpha: f64, kappa: f64) -> Option<(f64, f64)> {
 }
 
 /// Singularity exponent of a clamped-free corner: the real part of the smallest root when it
-/// is below 1, `None` when the corner is not singular (method sheet 4.2 [V]: plane strain
+/// is below 1, `None` when the corner is not singular (method sheet 4.2 \[V\]: plane strain
 /// `nu = 0.3` is singular above 56.79 deg, plane stress above 61.29 deg).
 pub fn clamped_free_exponent(alpha: f64, kappa: f64) -> Option<f64> {
     clamped_free_root(alpha, kappa)

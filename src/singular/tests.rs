@@ -23,7 +23,7 @@ use std::sync::Arc;
 const LAMBDA_270: f64 = 0.5444837368;
 /// Williams mode I at 240 deg (method sheet 4.1, Williams 1952).
 const LAMBDA_240: f64 = 0.6157310595;
-/// Clamped-free, 90 deg, nu = 0.3: plane strain and plane stress (method sheet 4.2 [V]).
+/// Clamped-free, 90 deg, nu = 0.3: plane strain and plane stress (method sheet 4.2 \[V\]).
 const CLAMPED_90_STRAIN: f64 = 0.7112;
 const CLAMPED_90_STRESS: f64 = 0.7583;
 

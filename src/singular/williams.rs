@@ -62,7 +62,7 @@ fn valid(alpha: f64) -> bool {
 }
 
 /// Smallest mode I exponent `lambda in (0, 1)` of `sin(lambda alpha) + lambda sin(alpha) = 0`
-/// (method sheet 4.1 [V]); `None` when the corner is not singular in mode I
+/// (method sheet 4.1 \[V\]); `None` when the corner is not singular in mode I
 /// (`alpha <= pi`) or the angle is not in `(0, 2 pi]`.
 pub fn williams_mode_one(alpha: f64) -> Option<f64> {
     if !valid(alpha) || alpha <= PI {
@@ -72,7 +72,7 @@ pub fn williams_mode_one(alpha: f64) -> Option<f64> {
 }
 
 /// Smallest nontrivial mode II exponent `lambda in (0, 1)` of
-/// `sin(lambda alpha) - lambda sin(alpha) = 0` (method sheet 4.1 [V]). The trivial root
+/// `sin(lambda alpha) - lambda sin(alpha) = 0` (method sheet 4.1 \[V\]). The trivial root
 /// `lambda = 1` is divided out, i.e. the roots of `(sin(lambda alpha) - lambda sin(alpha)) /
 /// (1 - lambda)` are searched. `None` when mode II is not singular (alpha up to about
 /// 257.45 deg, where the root crosses 1) or the angle is not in `(0, 2 pi]`.

@@ -173,7 +173,7 @@ mod tests {
         assert!(!r.oscillating);
     }
 
-    /// Method sheet 6.4 (a widely reproduced NASA Glenn tutorial vector, recomputed [V]):
+    /// Method sheet 6.4 (a widely reproduced NASA Glenn tutorial vector, recomputed \[V\]):
     /// h = 1, 2, 4; f = 0.97050, 0.96854, 0.96178: p = 1.786170, f_ext = 0.9713003,
     /// GCI12 = 0.1031 %, GCI23 = 0.3562 %, GCI23/(r^p GCI12) = 1.0020.
     #[test]
@@ -203,7 +203,7 @@ mod tests {
     }
 
     /// Method sheet 6.3, column 3 inputs (phi = 6.0042, 5.9624, 6.0909, ratios 1.5 and 1.3333;
-    /// inputs from memory, uncertain; the formulas on them give [V] s = -1, p = 3.5739,
+    /// inputs from memory, uncertain; the formulas on them give \[V\] s = -1, p = 3.5739,
     /// phi_ext = 6.01702, GCI = 0.267 %): the oscillating branch of the order equation.
     #[test]
     fn oscillating_branch() {

@@ -136,7 +136,7 @@ mod tests {
     }
 
     /// A peak stress at a 270 degree corner grows by 2^(1 - 0.5445) = 1.3713 per halving
-    /// (method sheet 4.3 [V]); the values alone give back the growth exponent 1 - lambda.
+    /// (method sheet 4.3 \[V\]); the values alone give back the growth exponent 1 - lambda.
     /// A value approaching its limit from below (phi = 3 - h^2) is not singular.
     #[test]
     fn singular_signature() {

@@ -26,7 +26,7 @@ use std::f64::consts::PI;
 use std::sync::Arc;
 
 /// Smallest mode-I Williams exponent of a 270 degree traction-free corner (method sheet 4.1,
-/// [V]: 0.544483736782463929...).
+/// \[V\]: 0.544483736782463929...).
 pub const WILLIAMS_LAMBDA_270: f64 = 0.544_483_736_782_464;
 const E: f64 = 1.0;
 const NU: f64 = 0.3;

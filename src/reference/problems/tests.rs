@@ -1,5 +1,5 @@
 //! The exact fields against the check values of the method sheet (section 5, values marked
-//! [V] there: verified by independent computation) and against their own equations.
+//! \[V\] there: verified by independent computation) and against their own equations.
 
 use super::cantilever::{D, E, L, NU, P};
 use super::kirsch::{kirsch_displacement, kirsch_stress};
@@ -13,7 +13,7 @@ fn close(a: f64, b: f64, rel: f64) -> bool {
 }
 
 /// Williams 270 degree mode-I point values, plane strain, E = 1, nu = 0.3 (method sheet 5.5
-/// [V]); the check values carry 12 digits, so 1e-9 relative.
+/// \[V\]); the check values carry 12 digits, so 1e-9 relative.
 #[test]
 fn williams_field_matches_check_values() {
     let u = williams_displacement(-0.5, 0.5);
@@ -54,7 +54,7 @@ fn williams_field_matches_check_values() {
 }
 
 /// Kirsch: ux(a, 0) = 3 S a / E = 3.0, uy(0, a) = -1.0, ux(5, 0) = 5.5248 (method sheet 5.1
-/// [V], plane stress, E = 1, nu = 0.3) and the peak sigma_xx(0, a) = 3 S (Kirsch 1898).
+/// \[V\], plane stress, E = 1, nu = 0.3) and the peak sigma_xx(0, a) = 3 S (Kirsch 1898).
 #[test]
 fn kirsch_field_matches_check_values() {
     assert!(close(kirsch_displacement(1.0, 0.0)[0], 3.0, 1e-12));
@@ -69,7 +69,7 @@ fn kirsch_field_matches_check_values() {
 }
 
 /// Lame, plane strain, a = 1, b = 2, p = 1, E = 1, nu = 0.3: u_r(a) = 1.9066667,
-/// u_r(b) = 1.2133333 (method sheet 5.4 [V], 8 digits).
+/// u_r(b) = 1.2133333 (method sheet 5.4 \[V\], 8 digits).
 #[test]
 fn lame_matches_check_values() {
     assert!(close(lame_radial_displacement(1.0), 1.9066667, 1e-7));
@@ -77,7 +77,7 @@ fn lame_matches_check_values() {
 }
 
 /// Cantilever tip deflection -(P L^3/(3EI)) - (4 + 5 nu) P D^2 L / (24 E I) = -0.0089 for the
-/// standard parameters (method sheet 5.3 [V], printed to 2 digits).
+/// standard parameters (method sheet 5.3 \[V\], printed to 2 digits).
 #[test]
 fn cantilever_tip_deflection() {
     let problem = cantilever(ElementKind::Quad8, 1);

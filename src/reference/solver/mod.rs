@@ -1,7 +1,9 @@
 //! Small-strain linear-elastic reference solver, for verification, examples and the demo.
 //!
-//! Not a user-facing feature: problems are defined in code (a [`Mesh`], a [`MaterialMap`], an
-//! [`AnalysisMode`] and [`BoundaryConditions`]), and the solution is the nodal displacement
+//! Not a user-facing feature: problems are defined in code (a [`Mesh`](crate::mesh::Mesh), a
+//! [`MaterialMap`](crate::material::MaterialMap), an
+//! [`AnalysisMode`](crate::material::AnalysisMode) and [`BoundaryConditions`]), and the
+//! solution is the nodal displacement
 //! field that the estimator then reads, exactly as it would read a file.
 //!
 //! The solver reuses the element library (shape tables, `map_gradients`), the material module
