@@ -68,6 +68,10 @@ pub(crate) struct BlockWriter {
     /// Bytes gathered in the block.
     filled: usize,
     mode: Mode,
+    /// Tests: the next direct write fails with `EINVAL`, as on a file system that takes direct
+    /// opens but not direct writes.
+    #[cfg(test)]
+    refuse_next_direct_write: bool,
 }
 
 impl BlockWriter {
@@ -89,6 +93,8 @@ impl BlockWriter {
             start,
             filled: 0,
             mode,
+            #[cfg(test)]
+            refuse_next_direct_write: false,
         }
     }
 
@@ -110,7 +116,16 @@ impl BlockWriter {
         let block = &self.storage[self.start..self.start + self.filled];
         let mut done = 0;
         while done < block.len() {
-            match self.file.write(&block[done..]) {
+            #[cfg(test)]
+            let attempt = if self.mode == Mode::Direct && self.refuse_next_direct_write {
+                self.refuse_next_direct_write = false;
+                Err(io::Error::from_raw_os_error(einval()))
+            } else {
+                self.file.write(&block[done..])
+            };
+            #[cfg(not(test))]
+            let attempt = self.file.write(&block[done..]);
+            match attempt {
                 Ok(0) => return Err(io::ErrorKind::WriteZero.into()),
                 Ok(n) => done += n,
                 Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
@@ -183,6 +198,19 @@ fn is_invalid_argument(e: &io::Error) -> bool {
     {
         let _ = e;
         false
+    }
+}
+
+/// The `EINVAL` error number (tests).
+#[cfg(test)]
+fn einval() -> i32 {
+    #[cfg(target_os = "linux")]
+    {
+        libc::EINVAL
+    }
+    #[cfg(not(target_os = "linux"))]
+    {
+        22
     }
 }
 
@@ -259,6 +287,26 @@ mod tests {
                 assert!(!direct, "a file under one block never goes direct");
             }
         }
+    }
+
+    /// A direct write refused with `EINVAL` part-way through a file sends the rest through the
+    /// cache, and the file still holds every byte in order.
+    #[test]
+    fn refused_direct_write_falls_back_to_the_cache() {
+        let dir = tempfile::tempdir().unwrap();
+        let data = pattern(3 * BLOCK + 999);
+        let path = dir.path().join("fallback.bin");
+        let mut w = BlockWriter::new(File::create(&path).unwrap());
+        // The first block decides the mode: direct where the file system takes it.
+        w.write_all(&data[..BLOCK]).unwrap();
+        let went_direct = w.wrote_directly();
+        w.refuse_next_direct_write = true;
+        w.write_all(&data[BLOCK..]).unwrap();
+        if went_direct {
+            assert_eq!(w.mode, Mode::Cached, "an EINVAL ends direct writes");
+        }
+        drop(w.finish().unwrap());
+        assert!(std::fs::read(&path).unwrap() == data);
     }
 
     /// With cached writes forced, big files are the same and never go direct.
