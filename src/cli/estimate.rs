@@ -111,8 +111,18 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
     }
     if let Some(out) = &args.out {
         stages.stage("writing annotated VTU");
-        write_annotated(out, &args.file, &model, &computed, args.ascii, &[], &[])
-            .with_context(|| format!("writing {}", out.display()))?;
+        let size_now = model.mesh.size_now();
+        write_annotated(
+            out,
+            &args.file,
+            &model,
+            &computed,
+            &size_now,
+            args.ascii,
+            &[],
+            &[],
+        )
+        .with_context(|| format!("writing {}", out.display()))?;
     }
     stages.finish();
     let concentration = est.concentration(&[0.5, 0.9]);
@@ -182,12 +192,15 @@ pub(super) fn run(args: &EstimateArgs, json: bool, quiet: bool) -> Result<Outcom
 }
 
 /// Writes the annotated VTU with the fields the estimate knows, plus `extra_points` and
-/// `extra_cells` (the plan adds its fields this way).
+/// `extra_cells` (the plan adds its fields this way). `size_now` is the mesh's current element
+/// size ([`crate::mesh::Mesh::size_now`]), which the plan has computed already.
+#[allow(clippy::too_many_arguments)]
 pub fn write_annotated(
     out: &std::path::Path,
     input: &std::path::Path,
     model: &Model,
     computed: &Computed,
+    size_now: &[f64],
     ascii: bool,
     extra_points: &[Field],
     extra_cells: &[Field],
@@ -202,7 +215,6 @@ pub fn write_annotated(
     let error_energy = per_element(&|e| est.error_energy(e));
     let error_share = per_element(&|e| est.error_share(e));
     let error_density = per_element(&|e| est.error_density(e));
-    let sizes = model.mesh.size_now();
     let options = WriteOptions {
         encoding: if ascii {
             Encoding::Ascii
@@ -229,7 +241,7 @@ pub fn write_annotated(
         one("error_energy", &error_energy),
         one("error_share", &error_share),
         one("error_density", &error_density),
-        one("size_now", &sizes),
+        one("size_now", size_now),
     ];
     cells.extend_from_slice(extra_cells);
     write_model_vtu(out, Some(input), model, &points, &cells, &options)?;

@@ -281,6 +281,7 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
             &args.file,
             &model,
             &computed,
+            &size_now,
             false,
             &[Field {
                 name: "size_target",

@@ -260,7 +260,7 @@ pub(crate) fn write_chunked_to<const K: usize>(
 }
 
 /// Checks that `sizes` holds one finite value per mesh node; `path` names the output file.
-pub(crate) fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
+fn check_sizes(path: &str, node_count: usize, sizes: &[f64]) -> Result<(), IoError> {
     if sizes.len() != node_count {
         return Err(IoError::ArrayLength {
             file: path.to_string(),
