@@ -146,7 +146,9 @@ fn estimate(path: &Path, kind: ElementKind) {
     };
     let read_estimate = total.elapsed().as_secs_f64();
     let out = path.with_extension("annotated.vtu");
-    hone::cli::write_annotated(&out, path, &model, &computed, false, &[], &[]).expect("write");
+    let size_now = model.mesh.size_now();
+    hone::cli::write_annotated(&out, path, &model, &computed, &size_now, false, &[], &[])
+        .expect("write");
     lap("write annotated VTU");
     println!(
         "  read + estimate {:.3} s wall ({:.2} s cpu), with write {:.3} s; relative error {:.4} %; peak memory {:.0} MB",
