@@ -14,8 +14,11 @@ use std::path::Path;
 /// chunks are written in order, so the bytes do not depend on the thread count.
 pub(crate) const CHUNK: usize = 16_384;
 
-/// Chunks formatted before they are written: bounds the memory held by formatted text.
-const CHUNKS_IN_FLIGHT: usize = 16;
+/// Chunks formatted before they are written: bounds the memory held by formatted text. The
+/// plan writes its files side by side, so a few chunks per file keep every core busy: on 1M
+/// tet10 (2 cores) 4 chunks wrote as fast as 16 (1.09-1.14 s against 1.02-1.37 s) with the
+/// plan's peak memory at 648 MB instead of 770 MB.
+pub(crate) const CHUNKS_IN_FLIGHT: usize = 4;
 
 /// Appends `v` in its shortest round-trip form (`0.5`, `1.0`, `1e-7`, `2.5e20`), which C's
 /// `strtod`, Python's `float`, JSON parsers and Gmsh's parser read back to the same value. The
@@ -339,7 +342,8 @@ mod tests {
 
     #[test]
     fn chunked_output_is_in_order() {
-        let n = 3 * CHUNK + 17;
+        // More than two batches, the last one partial.
+        let n = (2 * CHUNKS_IN_FLIGHT + 1) * CHUNK + 17;
         let mut out = Vec::new();
         write_chunked(&mut out, n, |r, buf| {
             for i in r {

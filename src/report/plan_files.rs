@@ -140,7 +140,7 @@ pub(crate) fn write_sizes_csv(w: &mut dyn Write, mesh: &Mesh, sizes: &[f64]) -> 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::io::text_out::CHUNK;
+    use crate::io::text_out::{CHUNK, CHUNKS_IN_FLIGHT};
 
     type Columns = (Vec<usize>, Vec<u32>, Vec<f64>, Vec<i8>, Vec<i32>);
 
@@ -158,7 +158,8 @@ mod tests {
     }
 
     fn rows_fixture() -> Columns {
-        let n = 3 * CHUNK + 7;
+        // Two batches of chunks, the second one partial.
+        let n = (CHUNKS_IN_FLIGHT + 2) * CHUNK + 7;
         let order: Vec<usize> = (0..n).rev().collect();
         let id: Vec<u32> = (0..n as u32).collect();
         let values: Vec<f64> = (0..n).map(|i| 0.1 * i as f64 + 1e-17).collect();
