@@ -10,7 +10,7 @@ use crate::io::{
     FieldValues,
 };
 use crate::mesh::Model;
-use crate::plan::{plan, Plan, PlanInput, PlanSettings, Strategy};
+use crate::plan::{plan_on, Plan, PlanGeometry, PlanInput, PlanSettings, Strategy};
 use crate::report::plan_files::{write_plan_tables, write_sizes_csv, ElementRows};
 use crate::report::{percent, PlanReport, SpotLine};
 use crate::singular::{screen_with, PoissonRatio, ScreeningOptions};
@@ -172,11 +172,16 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
     let mesh = &model.mesh;
     let n = mesh.element_count();
     let size_now = mesh.size_now();
-    stages.stage("screening for singular spots");
+    stages.stage("screening for singular spots, mesh edges");
     let mut options = ScreeningOptions::new(mode, PoissonRatio::from_materials(&map));
     options.user_points = user_points;
-    let screening = screen_with(&model, &computed.adjacency, &computed.boundary, &options)
-        .with_context(|| format!("screening {file}"))?;
+    // The plan's edge graph and element counter need the mesh alone: built alongside.
+    let (screening, geometry) = rayon::join(
+        || screen_with(&model, &computed.adjacency, &computed.boundary, &options),
+        || PlanGeometry::new(mesh),
+    );
+    let screening = screening.with_context(|| format!("screening {file}"))?;
+    let geometry = geometry.with_context(|| format!("planning {file}"))?;
     let mut exponents: Vec<f64> = (0..n).map(|e| mesh.element(e).0.order() as f64).collect();
     let mut singular = vec![false; n];
     let mut flagged = vec![0usize; screening.spots.len()];
@@ -212,7 +217,9 @@ pub(super) fn run(args: &PlanArgs, json: bool, quiet: bool) -> Result<Outcome> {
         dofs_per_node: mesh.dimension,
     };
     stages.stage("planning sizes");
-    let the_plan = plan(&input, &settings).with_context(|| format!("planning {file}"))?;
+    let the_plan =
+        plan_on(&input, &settings, &geometry).with_context(|| format!("planning {file}"))?;
+    drop(geometry); // its memory is free again for the writers
     if the_plan.budget_limited && the_plan.achievable_error > the_plan.target_error {
         warnings.push(format!(
             "the target {} % needs more than {} DOFs; the budget buys about {} %",

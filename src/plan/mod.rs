@@ -33,7 +33,7 @@ pub use crate::singular::clamped::{
 pub use crate::singular::williams::{corner_exponent, williams_mode_one, williams_mode_two};
 pub use gradation::{limit_gradation, EdgeGraph};
 pub use marking::{dorfler, fraction, maximum};
-pub use planner::{plan, Plan, PlanInput, PlanSettings, Strategy};
+pub use planner::{plan, plan_on, Plan, PlanGeometry, PlanInput, PlanSettings, Strategy};
 pub use size_law::{
     classic_sizes, optimal_budget, optimal_sizes, optimal_sizes_mixed, ClassicPlan, OptimalPlan,
 };

@@ -268,8 +268,35 @@ struct Realised {
     error_sq: f64,
 }
 
+/// What a plan needs from the mesh alone: the vertex-edge graph of the gradation and the
+/// element counter's geometry. Built once per mesh; a caller can build it while it does other
+/// work (the plan command overlaps it with the singular-spot screening).
+pub struct PlanGeometry {
+    graph: EdgeGraph,
+    counter: ElementCounter,
+}
+
+impl PlanGeometry {
+    /// Builds the edge graph and the counter of `mesh`; errors name a bad point.
+    pub fn new(mesh: &Mesh) -> Result<Self, PlanError> {
+        Ok(Self {
+            graph: EdgeGraph::new(&mesh.points, &mesh.vertex_edges())?,
+            counter: ElementCounter::new(mesh),
+        })
+    }
+}
+
 /// Plans the next mesh. Errors name the setting or the element that is out of range.
 pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanError> {
+    plan_on(input, settings, &PlanGeometry::new(input.mesh)?)
+}
+
+/// [`plan`] with the mesh's [`PlanGeometry`] built already (it must be of `input.mesh`).
+pub fn plan_on(
+    input: &PlanInput,
+    settings: &PlanSettings,
+    geometry: &PlanGeometry,
+) -> Result<Plan, PlanError> {
     let mesh = input.mesh;
     let n = mesh.element_count();
     for (what, len) in [
@@ -333,8 +360,7 @@ pub fn plan(input: &PlanInput, settings: &PlanSettings) -> Result<Plan, PlanErro
     let floor = settings
         .singular_floor
         .unwrap_or(DEFAULT_SINGULAR_FLOOR * diagonal);
-    let graph = EdgeGraph::new(&mesh.points, &mesh.vertex_edges())?;
-    let counter = ElementCounter::new(mesh);
+    let PlanGeometry { graph, counter } = geometry;
     // Vertices of singular elements keep at least the floor (capped by the element's current
     // size, so the floor never coarsens): the vertex minimum would otherwise hand them a
     // neighbour's smaller target and refinement would go on at the spot plan after plan.
