@@ -50,7 +50,11 @@ pub fn file_order(mesh: &Mesh) -> Vec<usize> {
 
 /// Lays out the cells of `mesh` for writing, sorted by their index in the input file.
 pub fn cells_in_file_order(mesh: &Mesh) -> CellArrays {
-    let order = file_order(mesh);
+    cells_in_order(mesh, file_order(mesh))
+}
+
+/// Lays out the cells of `mesh` in the element order `order`.
+fn cells_in_order(mesh: &Mesh, order: Vec<usize>) -> CellArrays {
     let mut connectivity = Vec::new();
     let mut offsets = Vec::with_capacity(order.len());
     let mut types = Vec::with_capacity(order.len());
@@ -66,6 +70,14 @@ pub fn cells_in_file_order(mesh: &Mesh) -> CellArrays {
         offsets,
         types,
     }
+}
+
+/// The tuples of `values` (`c` per element, element order) in the element order `order`.
+fn reordered<T: Copy + Send + Sync>(order: &[usize], values: &[T], c: usize) -> Vec<T> {
+    order
+        .par_iter()
+        .flat_map_iter(|&e| values[e * c..(e + 1) * c].iter().copied())
+        .collect()
 }
 
 /// Writes `model` with `point_fields` and `cell_fields` to `path` atomically, refusing to
@@ -98,7 +110,7 @@ pub fn write_model_vtu(
             )
         }
         _ => {
-            let cells = cells_in_file_order(mesh);
+            let cells = cells_in_order(mesh, order.clone());
             (Cow::Owned(cells.connectivity), cells.offsets, cells.types)
         }
     };
@@ -107,25 +119,13 @@ pub fn write_model_vtu(
         .map(|&e| mesh.file_cell[e] as i32)
         .collect();
     let displacement: &[f64] = bytemuck::cast_slice(&model.displacement);
-    let reordered = |v: &[f64], c: usize| -> Vec<f64> {
-        order
-            .par_iter()
-            .flat_map_iter(|&e| v[e * c..(e + 1) * c].iter().copied())
-            .collect()
-    };
-    let reordered_i32 = |v: &[i32], c: usize| -> Vec<i32> {
-        order
-            .par_iter()
-            .flat_map_iter(|&e| v[e * c..(e + 1) * c].iter().copied())
-            .collect()
-    };
     let mut owned_f64: Vec<Vec<f64>> = Vec::new();
     let mut owned_i32: Vec<Vec<i32>> = Vec::new();
     if !in_file_order {
         for f in cell_fields {
             match f.values {
-                FieldValues::F64(v) => owned_f64.push(reordered(v, f.components)),
-                FieldValues::I32(v) => owned_i32.push(reordered_i32(v, f.components)),
+                FieldValues::F64(v) => owned_f64.push(reordered(&order, v, f.components)),
+                FieldValues::I32(v) => owned_i32.push(reordered(&order, v, f.components)),
             }
         }
     }

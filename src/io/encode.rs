@@ -88,13 +88,15 @@ impl Src<'_> {
 
     /// Appends values `r` as bytes in `order`.
     pub(crate) fn bytes_into(&self, r: Range<usize>, order: ByteOrder, out: &mut Vec<u8>) {
-        let native = (order == ByteOrder::Little) == cfg!(target_endian = "little");
+        if let Some(bytes) = self.native_bytes(order) {
+            let size = self.scalar().size();
+            out.extend_from_slice(&bytes[r.start * size..r.end * size]);
+            return;
+        }
         macro_rules! put {
-            ($s:expr, $conv:expr, $direct:expr) => {{
+            ($s:expr, $conv:expr) => {{
                 let s = &$s[r];
-                if $direct && native {
-                    out.extend_from_slice(bytemuck::cast_slice(s));
-                } else if order == ByteOrder::Little {
+                if order == ByteOrder::Little {
                     for &v in s {
                         out.extend_from_slice(&$conv(v).to_le_bytes());
                     }
@@ -106,15 +108,15 @@ impl Src<'_> {
             }};
         }
         match self {
-            Src::F64(s) => put!(s, |v: f64| v, true),
-            Src::F32(s) => put!(s, |v: f32| v, true),
-            Src::I32(s) => put!(s, |v: i32| v, true),
-            Src::I64(s) => put!(s, |v: i64| v, true),
-            Src::U8(s) => put!(s, |v: u8| v, true),
-            Src::U32AsI64(s) => put!(s, |v: u32| v as i64, false),
-            Src::U64AsI64(s) => put!(s, |v: u64| v as i64, false),
-            Src::U32AsI32(s) => put!(s, |v: u32| v as i32, false),
-            Src::U64AsI32(s) => put!(s, |v: u64| v as i32, false),
+            Src::F64(s) => put!(s, |v: f64| v),
+            Src::F32(s) => put!(s, |v: f32| v),
+            Src::I32(s) => put!(s, |v: i32| v),
+            Src::I64(s) => put!(s, |v: i64| v),
+            Src::U8(s) => put!(s, |v: u8| v),
+            Src::U32AsI64(s) => put!(s, |v: u32| v as i64),
+            Src::U64AsI64(s) => put!(s, |v: u64| v as i64),
+            Src::U32AsI32(s) => put!(s, |v: u32| v as i32),
+            Src::U64AsI32(s) => put!(s, |v: u64| v as i32),
         }
     }
 

@@ -203,13 +203,6 @@ pub fn limit_gradation(
     sizes: &mut [f64],
     g: f64,
 ) -> Result<(), PlanError> {
-    if sizes.len() != points.len() {
-        return Err(PlanError::Length {
-            what: "sizes",
-            found: sizes.len(),
-            expected: points.len(),
-        });
-    }
     EdgeGraph::new(points, edges)?.limit(sizes, g)
 }
 
